@@ -1,0 +1,72 @@
+"""The command line: `beltplan COMMAND …`, or `beltplan [FILE]` to open the terminal UI.
+
+Each command lives in its own module with a `register(subparsers)` that adds its parser and sets
+`run`; this package only dispatches. Every user-caused error is a `PlannerError`: printed, exit 2.
+"""
+
+from __future__ import annotations
+
+import argparse
+import importlib
+import sys
+from collections.abc import Sequence
+
+from planner import __version__
+from planner.cli.common import EXIT_USER_ERROR, fail
+from planner.errors import PlannerError
+
+# One line per command module; the order is the order of `beltplan --help`.
+COMMANDS = ("check", "list", "schema")
+
+DESCRIPTION = """\
+Timing-belt service and failure-risk planner.
+
+Reads a TOML fleet file and tells which cam drives are overdue or due soon, by distance or age,
+whichever comes first, projected from odometer readings, and what a failure would cost.
+
+The maker's schedule and service information come first: this is a planning aid. Cam-drive work
+belongs to a qualified technician; a belt past its interval can stop the engine without warning.
+"""
+
+EPILOG = """\
+examples:
+  beltplan list fleet_examples/courier_fleet.toml
+  beltplan list fleet.toml --status overdue --format csv -o overdue.csv
+  beltplan check fleet.toml
+  beltplan COMMAND --help      more on one command
+"""
+
+
+def build_parser() -> argparse.ArgumentParser:
+    parser = argparse.ArgumentParser(
+        prog="beltplan", description=DESCRIPTION, epilog=EPILOG,
+        formatter_class=argparse.RawDescriptionHelpFormatter,
+    )
+    parser.add_argument("--version", action="version", version=f"beltplan {__version__}")
+    sub = parser.add_subparsers(dest="command", metavar="COMMAND")
+    for name in COMMANDS:
+        importlib.import_module(f"planner.cli.cmd_{name.replace('-', '_')}").register(sub)
+    return parser
+
+
+def main(argv: Sequence[str] | None = None) -> int:
+    args_in = list(sys.argv[1:] if argv is None else argv)
+    parser = build_parser()
+    # `beltplan [FILE] [options]` (no command word) opens the terminal UI.
+    if not args_in or (args_in[0] not in COMMANDS and not args_in[0].startswith("-")):
+        from planner.cli import cmd_open
+
+        args_in = ["open", *args_in]
+        parser = argparse.ArgumentParser(prog="beltplan")
+        cmd_open.register(parser.add_subparsers(dest="command"))
+    args = parser.parse_args(args_in)
+    if not getattr(args, "run", None):
+        parser.print_help()
+        return EXIT_USER_ERROR
+    try:
+        return int(args.run(args) or 0)
+    except PlannerError as err:
+        return fail(err)
+    except KeyboardInterrupt:
+        print("interrupted", file=sys.stderr)
+        return 130

@@ -1,0 +1,29 @@
+"""`beltplan check FILE`: validate a fleet file."""
+
+from __future__ import annotations
+
+import argparse
+
+from planner.cli.common import load
+
+
+def register(sub: argparse._SubParsersAction) -> None:
+    p = sub.add_parser(
+        "check", help="validate a fleet file and list every problem",
+        description="Validate a fleet file: every problem is listed with its line, vehicle and "
+        "field, and how to fix it. Exit status 0 when the file is valid, 2 when not.",
+        epilog="example:\n  beltplan check fleet_examples/courier_fleet.toml",
+        formatter_class=argparse.RawDescriptionHelpFormatter,
+    )
+    p.add_argument("file", help="fleet file (TOML)")
+    p.set_defaults(run=run)
+
+
+def run(args: argparse.Namespace) -> int:
+    loaded = load(args.file)
+    fleet = loaded.fleet
+    n = len(fleet.vehicles)
+    print(f"{args.file}: valid: {n} vehicle{'s' if n != 1 else ''}, "
+          f"{len(fleet.engines)} engine profile{'s' if len(fleet.engines) != 1 else ''}, "
+          f"distances in {fleet.unit}")
+    return 0

@@ -1,0 +1,71 @@
+"""Helpers shared by the command modules: options, dates, loading, writing output."""
+
+from __future__ import annotations
+
+import argparse
+import datetime as dt
+import difflib
+import sys
+from collections.abc import Sequence
+from pathlib import Path
+
+from planner.errors import PlannerError
+from planner.fileio import LoadedFleet, load_fleet, write_atomic
+
+EXIT_USER_ERROR = 2
+
+
+def fail(err: PlannerError) -> int:
+    print(f"beltplan: {err.render()}", file=sys.stderr)
+    return EXIT_USER_ERROR
+
+
+def iso_date(text: str) -> dt.date:
+    """argparse type for ISO 8601 calendar dates."""
+    try:
+        return dt.date.fromisoformat(text)
+    except ValueError:
+        raise argparse.ArgumentTypeError(
+            f"{text!r} is not a date: write it as YYYY-MM-DD, e.g. 2026-12-07"
+        ) from None
+
+
+def add_as_of(parser: argparse.ArgumentParser) -> None:
+    parser.add_argument("--as-of", type=iso_date, metavar="DATE", default=None,
+                        help="planning date, YYYY-MM-DD (default: today)")
+
+
+def as_of_or_today(args: argparse.Namespace) -> dt.date:
+    # The clock is read here, at the edge, never inside the engine.
+    return args.as_of or dt.date.today()
+
+
+def pick_words(text: str, allowed: Sequence[str], what: str) -> list[str]:
+    """Split 'a,b' and check each word against `allowed`; unknown words are an error."""
+    words = [w.strip() for w in text.split(",") if w.strip()]
+    if not words:
+        raise PlannerError(f"no {what} given", f"choose from: {', '.join(allowed)}")
+    for w in words:
+        if w not in allowed:
+            near = difflib.get_close_matches(w, allowed, n=1)
+            hint = f" (did you mean {near[0]!r}?)" if near else ""
+            raise PlannerError(f"unknown {what} {w!r}{hint}",
+                               f"choose from: {', '.join(allowed)}")
+    return words
+
+
+def load(path: str) -> LoadedFleet:
+    return load_fleet(path)
+
+
+def emit(text: str, out: str | None, fleet_path: Path | None = None, what: str = "") -> None:
+    """Print `text`, or write it atomically to `out` and say where it went."""
+    if out is None or out == "-":
+        sys.stdout.write(text)
+        return
+    target = Path(out)
+    if fleet_path is not None and target.resolve() == fleet_path.resolve():
+        raise PlannerError(f"refusing to write over the fleet file {out}",
+                           "Choose another output path with -o.")
+    write_atomic(target, text.encode("utf-8"))
+    print(f"wrote {what + ' to ' if what else ''}{target}", file=sys.stderr)

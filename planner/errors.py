@@ -1,0 +1,89 @@
+"""The one error type for everything a user can cause.
+
+A `PlannerError` has a title, a message and a list of `Problem`s, each pointing at a place in a
+fleet file. The command line prints it and exits with status 2; the terminal UI shows it in its
+error view. A traceback means a bug, never bad input.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field, replace
+
+Path = tuple[str | int, ...]
+
+
+def format_path(path: Path) -> str:
+    """`('vehicles', 2, 'readings', 0, 'odometer')` -> `vehicles[2].readings[0].odometer`."""
+    out = ""
+    for part in path:
+        if isinstance(part, int):
+            out += f"[{part}]"
+        else:
+            out += f".{part}" if out else part
+    return out
+
+
+@dataclass(frozen=True)
+class Problem:
+    """One thing wrong with the input, and where."""
+
+    message: str
+    path: Path = ()
+    hint: str = ""
+    vehicle: str | None = None
+    file: str | None = None
+    line: int | None = None
+    column: int | None = None
+
+    @property
+    def field(self) -> str:
+        """The field in the vehicle's own terms (`readings[0].odometer`), else the full path."""
+        path = self.path
+        if self.vehicle is not None and len(path) >= 2 and path[0] == "vehicles":
+            path = path[2:]
+        return format_path(path)
+
+    def located(self, file: str | None, line: int | None, column: int | None = None) -> Problem:
+        return replace(self, file=file, line=line, column=column)
+
+    def render(self) -> str:
+        """`fleet.toml:42: vehicle VAN-07, field readings[2].odometer: message. Fix: hint`."""
+        where = ""
+        if self.file:
+            where = self.file
+            if self.line:
+                where += f":{self.line}"
+                if self.column:
+                    where += f":{self.column}"
+            where += ": "
+        subject = []
+        if self.vehicle is not None:
+            subject.append(f"vehicle {self.vehicle}")
+        if self.field:
+            subject.append(f"field {self.field}")
+        text = where + (", ".join(subject) + ": " if subject else "") + self.message
+        if self.hint:
+            text += f"\n    fix: {self.hint}"
+        return text
+
+
+@dataclass
+class PlannerError(Exception):
+    """A user-caused failure: a bad file, a bad option, a refused save."""
+
+    title: str
+    message: str = ""
+    problems: list[Problem] = field(default_factory=list)
+
+    def __post_init__(self) -> None:
+        super().__init__(self.title)
+
+    def __str__(self) -> str:
+        return self.render()
+
+    def render(self) -> str:
+        lines = [self.title]
+        if self.message:
+            lines.append(self.message)
+        lines.extend(p.render() for p in self.problems)
+        return "\n".join(lines)

@@ -1,0 +1,168 @@
+"""Plans as records, and records as CSV (RFC 4180), JSON and Markdown text. Pure: strings out.
+
+`plan_record` fixes the field names scripts rely on; every format is built from it, so the
+columns of CSV, JSON and Markdown can never drift apart.
+"""
+
+from __future__ import annotations
+
+import csv
+import datetime as dt
+import io
+import json
+from collections.abc import Iterable, Sequence
+from typing import Any
+
+from planner.plan import VehiclePlan
+
+CAUTION = (
+    "The maker's schedule and service information come first: this plan is a planning aid, not "
+    "a diagnosis. Cam-drive work belongs to a qualified technician following the maker's "
+    "procedure and local rules. A belt past its interval can stop the engine without warning."
+)
+
+# The JSON field names, in order. Scripts rely on them: add, never rename.
+FIELDS: tuple[str, ...] = (
+    "id", "label", "status", "consequence", "drive", "interference", "duty",
+    "install_date", "install_odometer", "interval_distance", "interval_months",
+    "est_odometer", "daily_distance", "distance_remaining", "time_due_date",
+    "distance_due_date", "due_date", "days_remaining", "deciding_limit", "notes",
+)
+
+
+def _whole(x: float | None) -> int | None:
+    return None if x is None else int(round(x))
+
+
+def _iso(d: dt.date | None) -> str | None:
+    return None if d is None else d.isoformat()
+
+
+def plan_record(p: VehiclePlan, factor: float = 1.0) -> dict[str, Any]:
+    """One vehicle's plan as a flat record: distances whole, dates ISO 8601, unknowns None.
+
+    `factor` converts distances for display in another unit (see `planner.units`).
+    """
+
+    def dist(x: float | None) -> int | None:
+        return _whole(None if x is None else x * factor)
+
+    return {
+        "id": p.vehicle.id,
+        "label": p.vehicle.label,
+        "status": p.status.value,
+        "consequence": p.consequence.value,
+        "drive": p.spec.drive.value,
+        "interference": p.spec.interference.value,
+        "duty": p.vehicle.duty.value,
+        "install_date": _iso(p.install.date) if p.install else None,
+        "install_odometer": dist(p.install.odometer) if p.install else None,
+        "interval_distance": dist(p.spec.interval_distance) if p.spec.drive.has_interval
+        else None,
+        "interval_months": p.spec.interval_months if p.spec.drive.has_interval else None,
+        "est_odometer": dist(p.usage.est_odometer),
+        "daily_distance": None if p.usage.daily_distance is None
+        else round(p.usage.daily_distance * factor, 1),
+        "distance_remaining": dist(p.distance_remaining),
+        "time_due_date": _iso(p.time_due_date),
+        "distance_due_date": _iso(p.distance_due_date),
+        "due_date": _iso(p.due_date),
+        "days_remaining": p.days_remaining,
+        "deciding_limit": p.deciding_limit.value if p.deciding_limit else None,
+        "notes": list(p.notes),
+    }
+
+
+def table_columns(unit: str) -> list[tuple[str, str]]:
+    """(field, heading) of the human-readable table, shared by the terminal and Markdown."""
+    return [
+        ("id", "Vehicle"), ("label", "Label"), ("drive", "Drive"),
+        ("consequence", "If it fails"), ("status", "Status"),
+        ("distance_remaining", f"Left ({unit})"), ("due_date", "Due"),
+        ("days_remaining", "Days"), ("deciding_limit", "Decided by"),
+    ]
+
+
+def display(value: Any, field: str = "") -> str:
+    """A record value as table text: thousands separators, a dash for unknown."""
+    if value is None:
+        return "–"
+    if isinstance(value, bool):
+        return "yes" if value else "no"
+    if isinstance(value, int):
+        return f"{value:,}"
+    if isinstance(value, float):
+        return f"{value:,.1f}"
+    if isinstance(value, (list, tuple)):
+        return "; ".join(str(v) for v in value)
+    return str(value)
+
+
+def to_json(records: Sequence[dict[str, Any]], as_of: dt.date, unit: str,
+            extra: dict[str, Any] | None = None) -> str:
+    doc: dict[str, Any] = {"as_of": as_of.isoformat(), "unit": unit}
+    doc.update(extra or {})
+    doc["vehicles"] = list(records)
+    doc["caution"] = CAUTION
+    return json.dumps(doc, indent=2, ensure_ascii=False) + "\n"
+
+
+_RISKY_START = ("=", "+", "-", "@", "\t", "\r")
+
+
+def safe_cell(value: Any) -> Any:
+    """Neutralise a text cell a spreadsheet would run as a formula (OWASP: CSV injection).
+
+    Numbers stay numbers (a negative distance is data, not a formula); text that starts with
+    = + - @ tab or carriage return gets a leading apostrophe.
+    """
+    if value is None:
+        return ""
+    if isinstance(value, bool):
+        return "yes" if value else "no"
+    if isinstance(value, (int, float)):
+        return value
+    if isinstance(value, (list, tuple)):
+        value = "; ".join(str(v) for v in value)
+    text = str(value)
+    if text.startswith(_RISKY_START):
+        return "'" + text
+    return text
+
+
+def to_csv(records: Iterable[dict[str, Any]], fields: Sequence[str]) -> str:
+    """RFC 4180: comma separated, CRLF line ends, quotes doubled, a header row."""
+    out = io.StringIO()
+    writer = csv.writer(out, lineterminator="\r\n", quoting=csv.QUOTE_MINIMAL)
+    writer.writerow(fields)
+    for rec in records:
+        writer.writerow([safe_cell(rec.get(f)) for f in fields])
+    return out.getvalue()
+
+
+def _md_cell(value: Any) -> str:
+    if value is None:
+        return "–"
+    if isinstance(value, (list, tuple)):
+        value = "; ".join(str(v) for v in value)
+    text = str(value).replace("\\", "\\\\").replace("|", "\\|")
+    return " ".join(text.split())
+
+
+def to_markdown(records: Sequence[dict[str, Any]], columns: Sequence[tuple[str, str]],
+                title: str, preface: Sequence[str] = (), footer: Sequence[str] = ()) -> str:
+    """A titled Markdown table of `columns` ((field, heading) pairs) with the caution below."""
+    lines = [f"# {title}", ""]
+    for line in preface:
+        lines.append(line)
+    if preface:
+        lines.append("")
+    lines.append("| " + " | ".join(h for _, h in columns) + " |")
+    lines.append("|" + "|".join("---" for _ in columns) + "|")
+    for rec in records:
+        lines.append("| " + " | ".join(_md_cell(rec.get(f)) for f, _ in columns) + " |")
+    lines.append("")
+    for line in footer:
+        lines.append(line)
+    lines.append(f"> **Caution.** {CAUTION}")
+    return "\n".join(lines) + "\n"

@@ -1,0 +1,291 @@
+"""The fleet file's data model: one pydantic class per TOML table, one field per key.
+
+Every field carries a description; the JSON Schema (`beltplan schema`) and the README's file
+reference come from here. Structural rules (types, ranges, allowed words, unknown keys) live on
+the fields; rules that need the whole fleet (unique ids, known profiles, odometers that only go
+forward) live in `planner.validate`.
+"""
+
+from __future__ import annotations
+
+import datetime as dt
+from enum import StrEnum
+from typing import Annotated, Literal
+
+from pydantic import BaseModel, ConfigDict, Field
+
+SCHEMA_VERSION = 1
+
+# Sanity ceilings: a value above these is a typing slip, never a real vehicle.
+MAX_ODOMETER = 5_000_000
+MAX_INTERVAL_DISTANCE = 1_000_000
+MAX_INTERVAL_MONTHS = 360
+MAX_MONEY = 10_000_000.0
+MAX_HOURS = 200.0
+
+
+class Drive(StrEnum):
+    """How the crankshaft drives the camshafts."""
+
+    BELT = "belt"
+    WET_BELT = "wet-belt"
+    CHAIN = "chain"
+    GEAR = "gear"
+
+    @property
+    def has_interval(self) -> bool:
+        """Belts (dry or wet) are replaced by interval; chains and gears on condition."""
+        return self in (Drive.BELT, Drive.WET_BELT)
+
+
+class Interference(StrEnum):
+    """Whether valves and pistons can meet when the cam drive fails."""
+
+    INTERFERENCE = "interference"
+    NON_INTERFERENCE = "non-interference"
+    UNKNOWN = "unknown"
+
+
+class Fuel(StrEnum):
+    PETROL = "petrol"
+    DIESEL = "diesel"
+    OTHER = "other"
+
+
+class Duty(StrEnum):
+    NORMAL = "normal"
+    SEVERE = "severe"
+
+
+class BeltHistory(StrEnum):
+    KNOWN = "known"
+    UNKNOWN = "unknown"
+
+
+class JobReason(StrEnum):
+    SCHEDULED = "scheduled"
+    FAILED = "failed"
+    PRECAUTION = "precaution"
+
+
+class DistanceUnit(StrEnum):
+    KM = "km"
+    MI = "mi"
+
+
+class _Model(BaseModel):
+    model_config = ConfigDict(extra="forbid", frozen=True, use_enum_values=False)
+
+
+Odometer = Annotated[float, Field(ge=0, le=MAX_ODOMETER)]
+Money = Annotated[float, Field(ge=0, le=MAX_MONEY)]
+Hours = Annotated[float, Field(gt=0, le=MAX_HOURS)]
+IntervalDistance = Annotated[float, Field(gt=0, le=MAX_INTERVAL_DISTANCE)]
+IntervalMonths = Annotated[int, Field(gt=0, le=MAX_INTERVAL_MONTHS)]
+ShortText = Annotated[str, Field(max_length=2000)]
+
+
+class Reading(_Model):
+    """One dated odometer reading (fuel card, driver's log, telematics, workshop)."""
+
+    date: dt.date = Field(description="Day of the reading (ISO 8601, e.g. 2026-11-20).")
+    odometer: Odometer = Field(description="Odometer at that day, in the fleet's distance unit.")
+
+
+class BeltJob(_Model):
+    """A cam-drive job done on the vehicle: the belt fitted then is the one now running."""
+
+    date: dt.date = Field(description="Day the job was done.")
+    odometer: Odometer = Field(description="Odometer at the job, in the fleet's distance unit.")
+    reason: JobReason = Field(
+        description="scheduled (at the interval), failed (the drive let go) or precaution "
+        "(early, e.g. on acquisition or with other work)."
+    )
+    work: ShortText = Field(default="", description="What was replaced, e.g. 'belt, tensioner'.")
+    notes: ShortText = Field(default="", description="Free text kept with the job.")
+
+
+class DateRange(_Model):
+    """A span of days, both ends included."""
+
+    start: dt.date = Field(description="First day (included).")
+    end: dt.date = Field(description="Last day (included).")
+    reason: ShortText = Field(default="", description="Why, e.g. 'long route', 'customer away'.")
+
+
+class Contact(_Model):
+    """Who to call about a customer car (garages)."""
+
+    name: ShortText = Field(default="", description="Customer's name.")
+    phone: ShortText = Field(default="", description="Telephone number.")
+    email: ShortText = Field(default="", description="E-mail address.")
+
+
+class DriveSpec(_Model):
+    """Fields an engine profile sets and a vehicle may override."""
+
+    fuel: Fuel | None = Field(default=None, description="petrol, diesel or other.")
+    drive: Drive | None = Field(default=None, description="belt, wet-belt, chain or gear.")
+    interference: Interference | None = Field(
+        default=None,
+        description="interference, non-interference or unknown (unknown is planned as "
+        "interference and shown as unverified).",
+    )
+    interval_distance: IntervalDistance | None = Field(
+        default=None, description="Maker's replacement interval by distance (fleet unit)."
+    )
+    interval_months: IntervalMonths | None = Field(
+        default=None, description="Maker's replacement interval by age, in calendar months."
+    )
+    severe_interval_distance: IntervalDistance | None = Field(
+        default=None, description="Maker's severe-service interval by distance, if published."
+    )
+    severe_interval_months: IntervalMonths | None = Field(
+        default=None, description="Maker's severe-service interval by age, if published."
+    )
+    labour_hours: Hours | None = Field(default=None, description="Workshop hours for the job.")
+    parts: list[Annotated[str, Field(min_length=1, max_length=200)]] | None = Field(
+        default=None, description="Parts for the job, e.g. ['belt kit', 'water pump']."
+    )
+    parts_cost: Money | None = Field(default=None, description="Cost of the parts.")
+    failure_cost: Money | None = Field(
+        default=None, description="Repair estimate if the drive fails (engine damage)."
+    )
+
+
+# The override fields, in file order; the resolver in `planner.plan` walks this tuple.
+SPEC_FIELDS: tuple[str, ...] = tuple(DriveSpec.model_fields)
+
+
+class EngineProfile(DriveSpec):
+    """An engine shared by several vehicles: its drive, intervals, job and costs."""
+
+    description: ShortText = Field(default="", description="What the profile is, in words.")
+
+
+class Vehicle(DriveSpec):
+    """One vehicle. Drive fields given here override those of its engine profile."""
+
+    id: Annotated[str, Field(min_length=1, max_length=64)] = Field(
+        description="Unique id (fleet number or plate)."
+    )
+    label: ShortText = Field(default="", description="Name shown beside the id.")
+    engine: str | None = Field(default=None, description="Id of an [engines.<id>] profile.")
+    duty: Duty = Field(default=Duty.NORMAL, description="normal or severe (towing, short "
+                       "trips, stop-start delivery, long idling, dust, extreme temperatures).")
+    in_service: dt.date = Field(description="Day the vehicle entered service (or the fleet).")
+    in_service_odometer: Odometer = Field(
+        default=0, description="Odometer on the in-service day."
+    )
+    belt_history: BeltHistory = Field(
+        default=BeltHistory.KNOWN,
+        description="known: the factory belt (or a recorded job) is the one running; unknown: "
+        "bought used without a belt record.",
+    )
+    readings: list[Reading] = Field(default_factory=list, description="Odometer readings.")
+    belt_jobs: list[BeltJob] = Field(default_factory=list, description="Cam-drive jobs done.")
+    unavailable: list[DateRange] = Field(
+        default_factory=list, description="Days the vehicle cannot come to the workshop."
+    )
+    contact: Contact | None = Field(default=None, description="Who to call (garages).")
+    notes: ShortText = Field(default="", description="Free text kept with the vehicle.")
+
+
+class FleetSettings(_Model):
+    """The [fleet] table: names, units and warning thresholds."""
+
+    name: ShortText = Field(default="", description="Name of the fleet or garage.")
+    distance_unit: DistanceUnit = Field(
+        default=DistanceUnit.KM, description="km or mi: the unit of every distance in the file."
+    )
+    due_soon_distance: Annotated[float, Field(ge=0, le=MAX_INTERVAL_DISTANCE)] = Field(
+        default=5000, description="Warn this far before a distance limit."
+    )
+    due_soon_days: Annotated[int, Field(ge=0, le=3650)] = Field(
+        default=60, description="Warn this many days before a date limit."
+    )
+    default_daily_distance: Annotated[float, Field(ge=0, le=5000)] | None = Field(
+        default=None, description="Distance per day assumed when a vehicle has too few readings."
+    )
+    labour_rate: Money = Field(default=0.0, description="Workshop cost per labour hour.")
+    breakdown_cost: Money = Field(
+        default=400.0,
+        description="Cost of a drive failure on a non-interference engine: tow, belt job and a "
+        "lost day (default 400, from memory: set your own).",
+    )
+    currency: Annotated[str, Field(max_length=8)] = Field(
+        default="", description="Currency shown beside costs, e.g. 'EUR' (display only)."
+    )
+
+
+class RiskSettings(_Model):
+    """The [risk] table: assumptions of the failure-risk model (shown wherever it is used)."""
+
+    shape: Annotated[float, Field(gt=0, le=20)] = Field(
+        default=3.5, description="Weibull shape beta of drive life (default 3.5, from memory)."
+    )
+    share_failed_at_interval: Annotated[float, Field(gt=0, lt=1)] = Field(
+        default=0.01,
+        description="Share of drives expected to have failed by the maker's interval "
+        "(default 0.01, from memory).",
+    )
+    horizon_days: Annotated[int, Field(ge=1, le=3650)] = Field(
+        default=90, description="Look-ahead for the failure probability, in days."
+    )
+    use_fleet_fit: bool = Field(
+        default=False,
+        description="Use the Weibull fit from the fleet's own job history instead of the "
+        "assumptions above, when the history has enough failures.",
+    )
+
+
+Weekday = Literal["mon", "tue", "wed", "thu", "fri", "sat", "sun"]
+
+
+class Workshop(_Model):
+    """The [workshop] table: bays and hours for the week plan."""
+
+    bays: Annotated[int, Field(ge=1, le=100)] = Field(default=1, description="Number of bays.")
+    hours_per_day: Annotated[float, Field(gt=0, le=24)] = Field(
+        default=8.0, description="Working hours per bay per day."
+    )
+    weekdays: list[Weekday] = Field(
+        default_factory=lambda: ["mon", "tue", "wed", "thu", "fri"],
+        description="Working weekdays.",
+    )
+    closed: list[dt.date] = Field(default_factory=list, description="Closed days (holidays).")
+    parts_lead_days: Annotated[int, Field(ge=0, le=365)] = Field(
+        default=2, description="Days from ordering parts to having them."
+    )
+    kits_in_stock: bool = Field(
+        default=False, description="Common kits are on the shelf: no lead time."
+    )
+
+
+class Fleet(_Model):
+    """A whole fleet file."""
+
+    schema_version: Literal[1] = Field(
+        default=SCHEMA_VERSION, alias="schema", description="Format version of the file: 1."
+    )
+    fleet: FleetSettings = Field(default_factory=FleetSettings)
+    engines: dict[Annotated[str, Field(min_length=1, max_length=64)], EngineProfile] = Field(
+        default_factory=dict, description="Engine profiles by id."
+    )
+    vehicles: list[Vehicle] = Field(default_factory=list, description="The vehicles.")
+    risk: RiskSettings = Field(default_factory=RiskSettings)
+    workshop: Workshop = Field(default_factory=Workshop)
+
+    model_config = ConfigDict(extra="forbid", frozen=True, populate_by_name=True)
+
+    @property
+    def unit(self) -> str:
+        return self.fleet.distance_unit.value
+
+
+def json_schema() -> dict:
+    """The JSON Schema of the fleet file, for editors."""
+    schema = Fleet.model_json_schema(by_alias=True)
+    schema["$schema"] = "https://json-schema.org/draft/2020-12/schema"
+    schema["title"] = "beltplan fleet file"
+    return schema

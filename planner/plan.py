@@ -1,0 +1,359 @@
+"""The planning rules: what is due, when, by which limit, and why. Each rule once, here.
+
+Pure functions over the fleet model: `as_of` (the planning date) is always a parameter. The
+outputs are plain frozen dataclasses that exports, the CLI and the UI only display.
+"""
+
+from __future__ import annotations
+
+import datetime as dt
+import math
+from dataclasses import dataclass
+from enum import StrEnum
+
+from dateutil.relativedelta import relativedelta
+
+from planner.fleet import (
+    SPEC_FIELDS,
+    BeltHistory,
+    Drive,
+    Duty,
+    Fleet,
+    Fuel,
+    Interference,
+    Vehicle,
+)
+
+RATE_WINDOW_DAYS = 365
+RATE_MIN_SPAN_DAYS = 14
+STALE_READING_DAYS = 90
+
+
+class Status(StrEnum):
+    OVERDUE = "overdue"
+    NO_RECORD = "no-record"
+    DUE_SOON = "due-soon"
+    OK = "ok"
+    ON_CONDITION = "on-condition"
+
+    @property
+    def rank(self) -> int:
+        return _STATUS_RANK[self]
+
+
+_STATUS_RANK = {s: k for k, s in enumerate(Status)}
+
+
+class Consequence(StrEnum):
+    ENGINE_DAMAGE = "engine-damage"
+    BREAKDOWN = "breakdown"
+    UNVERIFIED = "unverified"
+
+    @property
+    def severe(self) -> bool:
+        """Engine damage, or unknown and so planned as engine damage."""
+        return self is not Consequence.BREAKDOWN
+
+
+class Limit(StrEnum):
+    DISTANCE = "distance"
+    TIME = "time"
+
+
+class IntervalBasis(StrEnum):
+    NORMAL = "normal"
+    SEVERE = "severe"
+    SEVERE_UNKNOWN = "severe duty, no severe interval known"
+
+
+@dataclass(frozen=True)
+class Spec:
+    """A vehicle's drive after its own fields have overridden its engine profile's."""
+
+    fuel: Fuel | None
+    drive: Drive
+    interference: Interference
+    interference_given: bool
+    interval_distance: float | None
+    interval_months: int | None
+    interval_basis: IntervalBasis
+    labour_hours: float | None
+    parts: tuple[str, ...]
+    parts_cost: float | None
+    failure_cost: float | None
+
+
+@dataclass(frozen=True)
+class Install:
+    """The belt now running: when and at what odometer it went in, and how we know."""
+
+    date: dt.date
+    odometer: float
+    source: str  # "belt job (scheduled)", "factory belt", "assumed: as old as the vehicle"
+    assumed: bool = False
+
+
+@dataclass(frozen=True)
+class Usage:
+    """Distance per day and the estimated odometer on the planning date."""
+
+    daily_distance: float | None
+    basis: str
+    last_date: dt.date | None
+    last_odometer: float | None
+    est_odometer: float | None
+
+
+@dataclass(frozen=True)
+class VehiclePlan:
+    """Everything the planner concludes about one vehicle on one planning date."""
+
+    vehicle: Vehicle
+    spec: Spec
+    status: Status
+    consequence: Consequence
+    install: Install | None
+    usage: Usage
+    due_odometer: float | None
+    distance_remaining: float | None
+    time_due_date: dt.date | None
+    distance_due_date: dt.date | None
+    due_date: dt.date | None
+    days_remaining: int | None
+    deciding_limit: Limit | None
+    notes: tuple[str, ...]
+
+    @property
+    def id(self) -> str:
+        return self.vehicle.id
+
+
+def resolve_spec(vehicle: Vehicle, fleet: Fleet) -> Spec:
+    """Merge the engine profile and the vehicle's own fields (the vehicle's win)."""
+    profile = fleet.engines.get(vehicle.engine) if vehicle.engine else None
+    merged = {}
+    for name in SPEC_FIELDS:
+        own = getattr(vehicle, name)
+        merged[name] = own if own is not None else getattr(profile, name, None)
+    drive = merged["drive"]
+    if drive is None:  # validation forbids this; keep the engine total for direct callers
+        raise ValueError(f"vehicle {vehicle.id}: no drive type")
+    distance, months = merged["interval_distance"], merged["interval_months"]
+    basis = IntervalBasis.NORMAL
+    if vehicle.duty is Duty.SEVERE:
+        sev_d, sev_m = merged["severe_interval_distance"], merged["severe_interval_months"]
+        if sev_d is None and sev_m is None:
+            basis = IntervalBasis.SEVERE_UNKNOWN
+        else:
+            basis = IntervalBasis.SEVERE
+            distance = sev_d if sev_d is not None else distance
+            months = sev_m if sev_m is not None else months
+    return Spec(
+        fuel=merged["fuel"],
+        drive=drive,
+        interference=merged["interference"] or Interference.UNKNOWN,
+        interference_given=merged["interference"] is not None,
+        interval_distance=distance,
+        interval_months=months,
+        interval_basis=basis,
+        labour_hours=merged["labour_hours"],
+        parts=tuple(merged["parts"] or ()),
+        parts_cost=merged["parts_cost"],
+        failure_cost=merged["failure_cost"],
+    )
+
+
+def consequence_of(spec: Spec) -> Consequence:
+    return {
+        Interference.INTERFERENCE: Consequence.ENGINE_DAMAGE,
+        Interference.NON_INTERFERENCE: Consequence.BREAKDOWN,
+        Interference.UNKNOWN: Consequence.UNVERIFIED,
+    }[spec.interference]
+
+
+def current_install(vehicle: Vehicle, as_of: dt.date) -> Install | None:
+    """The latest belt job on or before `as_of`; else the factory belt if history is known."""
+    jobs = [j for j in vehicle.belt_jobs if j.date <= as_of]
+    if jobs:
+        last = max(jobs, key=lambda j: (j.date, j.odometer))
+        return Install(last.date, last.odometer, f"belt job of {last.date} ({last.reason.value})")
+    if vehicle.belt_history is BeltHistory.KNOWN:
+        return Install(vehicle.in_service, vehicle.in_service_odometer, "factory belt")
+    return None
+
+
+def assumed_install(vehicle: Vehicle) -> Install:
+    """For unknown history: assume the belt is as old as the vehicle (field notes)."""
+    return Install(vehicle.in_service, vehicle.in_service_odometer,
+                   "assumed: as old as the vehicle (no belt record)", assumed=True)
+
+
+def odometer_points(vehicle: Vehicle, as_of: dt.date) -> list[tuple[dt.date, float]]:
+    """Dated odometer values known on `as_of`: in service, readings and belt jobs."""
+    points = [(vehicle.in_service, vehicle.in_service_odometer)]
+    points += [(r.date, r.odometer) for r in vehicle.readings if r.date <= as_of]
+    points += [(j.date, j.odometer) for j in vehicle.belt_jobs if j.date <= as_of]
+    return sorted(p for p in points if p[0] <= as_of)
+
+
+def least_squares_slope(points: list[tuple[dt.date, float]]) -> float:
+    """Ordinary least-squares slope of odometer on day number (distance per day)."""
+    xs = [p[0].toordinal() for p in points]
+    ys = [p[1] for p in points]
+    mx = sum(xs) / len(xs)
+    my = sum(ys) / len(ys)
+    sxx = sum((x - mx) ** 2 for x in xs)
+    sxy = sum((x - mx) * (y - my) for x, y in zip(xs, ys, strict=True))
+    return sxy / sxx
+
+
+def _spans(points: list[tuple[dt.date, float]]) -> bool:
+    return len(points) >= 2 and (points[-1][0] - points[0][0]).days >= RATE_MIN_SPAN_DAYS
+
+
+def usage(vehicle: Vehicle, fleet: Fleet, as_of: dt.date) -> Usage:
+    """Usage rate and estimated odometer: recent window, else all values, else the default."""
+    points = odometer_points(vehicle, as_of)
+    recent = [p for p in points if (as_of - p[0]).days <= RATE_WINDOW_DAYS]
+    rate: float | None
+    if _spans(recent):
+        rate, basis = least_squares_slope(recent), f"least squares, {len(recent)} values " \
+            f"in the last {RATE_WINDOW_DAYS} days"
+    elif _spans(points):
+        rate, basis = least_squares_slope(points), f"least squares, all {len(points)} values"
+    elif fleet.fleet.default_daily_distance is not None:
+        rate, basis = fleet.fleet.default_daily_distance, "fleet default (too few readings)"
+    else:
+        rate, basis = None, "no usage data"
+    if rate is not None:
+        rate = max(rate, 0.0)
+    last_date, last_odo = points[-1]
+    est = last_odo + (rate or 0.0) * (as_of - last_date).days
+    return Usage(rate, basis, last_date, last_odo, est)
+
+
+def add_months(day: dt.date, months: int) -> dt.date:
+    """Calendar months with end-of-month clipping (2024-02-29 + 36 months = 2027-02-28)."""
+    return day + relativedelta(months=months)
+
+
+def plan_vehicle(vehicle: Vehicle, fleet: Fleet, as_of: dt.date) -> VehiclePlan:
+    """Apply every planning rule to one vehicle."""
+    spec = resolve_spec(vehicle, fleet)
+    consequence = consequence_of(spec)
+    use = usage(vehicle, fleet, as_of)
+    unit = fleet.unit
+    notes: list[str] = []
+
+    if consequence is Consequence.UNVERIFIED:
+        notes.append("interference not verified: planned and costed as an interference engine "
+                     "until someone checks it" if spec.interference_given else
+                     "interference status not recorded: planned as an interference engine "
+                     "until someone checks it")
+        if spec.fuel is Fuel.DIESEL:
+            notes.append("diesel: high compression leaves almost no valve clearance, so diesels "
+                         "are almost always interference engines")
+    if spec.interval_basis is IntervalBasis.SEVERE:
+        notes.append("severe duty: the severe-service interval is in force")
+    elif spec.interval_basis is IntervalBasis.SEVERE_UNKNOWN and spec.drive.has_interval:
+        notes.append("severe duty but no severe-service interval is known: the normal interval "
+                     "is used; check the maker's severe-service schedule, it is usually shorter")
+    if spec.drive is Drive.WET_BELT:
+        notes.append("wet belt: runs in oil; a missed oil service or wrong oil shortens its life, "
+                     "and belt debris can block the oil pick-up")
+    if use.daily_distance is None:
+        notes.append("no usage data: the distance limit cannot be projected; add odometer "
+                     "readings")
+    elif use.basis.startswith("fleet default"):
+        notes.append(f"usage from the fleet default of {use.daily_distance:g} {unit}/day: add "
+                     "odometer readings for a real projection")
+    if use.last_date is not None and (as_of - use.last_date).days > STALE_READING_DAYS:
+        notes.append(f"last odometer value is {(as_of - use.last_date).days} days old "
+                     f"({use.last_date}): the estimate may be far off")
+    later = sum(1 for r in vehicle.readings if r.date > as_of) + sum(
+        1 for j in vehicle.belt_jobs if j.date > as_of)
+    if later:
+        notes.append(f"{later} record{'s' if later != 1 else ''} dated after the planning date "
+                     "ignored")
+
+    empty = dict(due_odometer=None, distance_remaining=None, time_due_date=None,
+                 distance_due_date=None, due_date=None, days_remaining=None,
+                 deciding_limit=None)
+    if not spec.drive.has_interval:
+        notes.insert(0, f"timing {spec.drive.value}: no fixed interval; replaced on condition "
+                     "(rattle at cold start, stretch beyond the maker's limit, cam/crank "
+                     "correlation fault)" if spec.drive is Drive.CHAIN else
+                     "gear drive: no routine replacement")
+        install = current_install(vehicle, as_of)
+        return VehiclePlan(vehicle, spec, Status.ON_CONDITION, consequence, install, use,
+                           notes=tuple(notes), **empty)
+
+    install = current_install(vehicle, as_of)
+    if install is None:
+        notes.insert(0, "no belt record (bought used): replace on acquisition rather than "
+                     "trust the odometer")
+        return VehiclePlan(vehicle, spec, Status.NO_RECORD, consequence, None, use,
+                           notes=tuple(notes), **empty)
+
+    assert spec.interval_distance is not None and spec.interval_months is not None
+    due_odometer = install.odometer + spec.interval_distance
+    est = use.est_odometer if use.est_odometer is not None else install.odometer
+    remaining = due_odometer - est
+    time_due = add_months(install.date, spec.interval_months)
+    distance_due: dt.date | None = None
+    if use.daily_distance:
+        # Floor: the day on which the limit is reached, never a day late.
+        distance_due = as_of + dt.timedelta(days=math.floor(remaining / use.daily_distance))
+    elif remaining <= 0:
+        distance_due = use.last_date
+    if distance_due is not None and distance_due < time_due:
+        due, deciding = distance_due, Limit.DISTANCE
+    else:
+        due, deciding = time_due, Limit.TIME
+    days_left = (due - as_of).days
+
+    if remaining <= 0 or time_due <= as_of:
+        status = Status.OVERDUE
+    elif remaining <= fleet.fleet.due_soon_distance or days_left <= fleet.fleet.due_soon_days:
+        status = Status.DUE_SOON
+    else:
+        status = Status.OK
+
+    notes.insert(0, _deciding_note(deciding, status, spec, install, due, remaining, unit))
+    if status is Status.OVERDUE:
+        notes.insert(1, "past its interval: at risk of a sudden engine stop; book it now and do "
+                     "not run it further than you must")
+    return VehiclePlan(
+        vehicle, spec, status, consequence, install, use,
+        due_odometer=due_odometer,
+        distance_remaining=remaining,
+        time_due_date=time_due,
+        distance_due_date=distance_due,
+        due_date=due,
+        days_remaining=days_left,
+        deciding_limit=deciding,
+        notes=tuple(notes),
+    )
+
+
+def _deciding_note(limit: Limit, status: Status, spec: Spec, install: Install, due: dt.date,
+                   remaining: float, unit: str) -> str:
+    if limit is Limit.TIME:
+        what = f"age limit decides: {spec.interval_months} months from {install.date} -> {due}"
+    else:
+        what = (f"distance limit decides: {spec.interval_distance:,.0f} {unit} from "
+                f"{install.odometer:,.0f} {unit} -> projected {due}")
+    if status is Status.OVERDUE:
+        return what + " (reached)"
+    return what + f"; {remaining:,.0f} {unit} left"
+
+
+def sort_key(p: VehiclePlan) -> tuple:
+    """Default order: status, then engine-damage/unverified before breakdown, then due date."""
+    due = p.due_date.toordinal() if p.due_date else 0
+    return (p.status.rank, 0 if p.consequence.severe else 1, due, p.id)
+
+
+def plan_fleet(fleet: Fleet, as_of: dt.date) -> list[VehiclePlan]:
+    """Every vehicle's plan, in the default order."""
+    return sorted((plan_vehicle(v, fleet, as_of) for v in fleet.vehicles), key=sort_key)
