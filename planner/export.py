@@ -27,6 +27,7 @@ FIELDS: tuple[str, ...] = (
     "install_date", "install_odometer", "interval_distance", "interval_months",
     "est_odometer", "daily_distance", "distance_remaining", "time_due_date",
     "distance_due_date", "due_date", "days_remaining", "deciding_limit", "notes",
+    "life_used",
 )
 
 
@@ -70,6 +71,7 @@ def plan_record(p: VehiclePlan, factor: float = 1.0) -> dict[str, Any]:
         "days_remaining": p.days_remaining,
         "deciding_limit": p.deciding_limit.value if p.deciding_limit else None,
         "notes": list(p.notes),
+        "life_used": None if p.life_used is None else round(p.life_used, 3),
     }
 
 
@@ -80,13 +82,20 @@ def table_columns(unit: str) -> list[tuple[str, str]]:
         ("consequence", "If it fails"), ("status", "Status"),
         ("distance_remaining", f"Left ({unit})"), ("due_date", "Due"),
         ("days_remaining", "Days"), ("deciding_limit", "Decided by"),
+        ("life_used", "Life used"),
     ]
+
+
+# Fractions shown as percentages in tables (the records keep fractions).
+PERCENT_FIELDS = {"life_used"}
 
 
 def display(value: Any, field: str = "") -> str:
     """A record value as table text: thousands separators, a dash for unknown."""
     if value is None:
         return "–"
+    if field in PERCENT_FIELDS:
+        return f"{value * 100:.0f} %"
     if isinstance(value, bool):
         return "yes" if value else "no"
     if isinstance(value, int):
@@ -140,12 +149,8 @@ def to_csv(records: Iterable[dict[str, Any]], fields: Sequence[str]) -> str:
     return out.getvalue()
 
 
-def _md_cell(value: Any) -> str:
-    if value is None:
-        return "–"
-    if isinstance(value, (list, tuple)):
-        value = "; ".join(str(v) for v in value)
-    text = str(value).replace("\\", "\\\\").replace("|", "\\|")
+def _md_cell(value: Any, field: str) -> str:
+    text = display(value, field).replace("\\", "\\\\").replace("|", "\\|")
     return " ".join(text.split())
 
 
@@ -160,7 +165,7 @@ def to_markdown(records: Sequence[dict[str, Any]], columns: Sequence[tuple[str, 
     lines.append("| " + " | ".join(h for _, h in columns) + " |")
     lines.append("|" + "|".join("---" for _ in columns) + "|")
     for rec in records:
-        lines.append("| " + " | ".join(_md_cell(rec.get(f)) for f, _ in columns) + " |")
+        lines.append("| " + " | ".join(_md_cell(rec.get(f), f) for f, _ in columns) + " |")
     lines.append("")
     for line in footer:
         lines.append(line)

@@ -122,6 +122,8 @@ class VehiclePlan:
     days_remaining: int | None
     deciding_limit: Limit | None
     notes: tuple[str, ...]
+    # Share of the interval used: the larger of distance and age fractions (1.0 = at the limit).
+    life_used: float | None = None
 
     @property
     def id(self) -> str:
@@ -214,6 +216,8 @@ def _spans(points: list[tuple[dt.date, float]]) -> bool:
 def usage(vehicle: Vehicle, fleet: Fleet, as_of: dt.date) -> Usage:
     """Usage rate and estimated odometer: recent window, else all values, else the default."""
     points = odometer_points(vehicle, as_of)
+    if not points:
+        return Usage(None, "not yet in service on the planning date", None, None, None)
     recent = [p for p in points if (as_of - p[0]).days <= RATE_WINDOW_DAYS]
     rate: float | None
     if _spans(recent):
@@ -235,6 +239,19 @@ def usage(vehicle: Vehicle, fleet: Fleet, as_of: dt.date) -> Usage:
 def add_months(day: dt.date, months: int) -> dt.date:
     """Calendar months with end-of-month clipping (2024-02-29 + 36 months = 2027-02-28)."""
     return day + relativedelta(months=months)
+
+
+def life_fraction(spec: Spec, install: Install, est_odometer: float | None,
+                  as_of: dt.date) -> float | None:
+    """Share of the interval used on `as_of`: the larger of the distance and age fractions."""
+    if spec.interval_distance is None or spec.interval_months is None:
+        return None
+    span_days = (add_months(install.date, spec.interval_months) - install.date).days
+    by_time = (as_of - install.date).days / span_days
+    if est_odometer is None:
+        return max(by_time, 0.0)
+    by_distance = (est_odometer - install.odometer) / spec.interval_distance
+    return max(by_time, by_distance, 0.0)
 
 
 def plan_vehicle(vehicle: Vehicle, fleet: Fleet, as_of: dt.date) -> VehiclePlan:
@@ -292,8 +309,9 @@ def plan_vehicle(vehicle: Vehicle, fleet: Fleet, as_of: dt.date) -> VehiclePlan:
     if install is None:
         notes.insert(0, "no belt record (bought used): replace on acquisition rather than "
                      "trust the odometer")
+        life = life_fraction(spec, assumed_install(vehicle), use.est_odometer, as_of)
         return VehiclePlan(vehicle, spec, Status.NO_RECORD, consequence, None, use,
-                           notes=tuple(notes), **empty)
+                           notes=tuple(notes), life_used=life, **empty)
 
     assert spec.interval_distance is not None and spec.interval_months is not None
     due_odometer = install.odometer + spec.interval_distance
@@ -333,6 +351,7 @@ def plan_vehicle(vehicle: Vehicle, fleet: Fleet, as_of: dt.date) -> VehiclePlan:
         days_remaining=days_left,
         deciding_limit=deciding,
         notes=tuple(notes),
+        life_used=life_fraction(spec, install, est, as_of),
     )
 
 

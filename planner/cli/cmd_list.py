@@ -7,6 +7,7 @@ import io
 from collections import Counter
 from collections.abc import Sequence
 
+from rich import box
 from rich.console import Console
 from rich.table import Table
 from rich.text import Text
@@ -80,12 +81,13 @@ def _summary(plans: Sequence[VehiclePlan]) -> str:
 
 def render_table(plans: Sequence[VehiclePlan], records: Sequence[dict], unit: str, title: str,
                  plain: bool = False) -> str:
-    table = Table(title=title, title_justify="left", header_style="bold", show_lines=False,
-                  pad_edge=False, expand=False)
+    table = Table(title=title, title_justify="left", title_style="bold", header_style="bold",
+                  box=box.SIMPLE_HEAD, pad_edge=False, expand=False)
     for _, heading in export.table_columns(unit):
-        right = heading.startswith(("Left", "Days"))
+        right = heading.startswith(("Left", "Days", "Life"))
         table.add_column(heading, justify="right" if right else "left",
-                         overflow="fold", no_wrap=heading in ("Status", "Due"))
+                         overflow="fold", no_wrap=heading != "Label",
+                         min_width=18 if heading == "Label" else None)
     for rec in records:
         cells = []
         for field, _ in export.table_columns(unit):
@@ -99,7 +101,8 @@ def render_table(plans: Sequence[VehiclePlan], records: Sequence[dict], unit: st
         console = Console(file=buf, width=160, color_system=None, highlight=False, emoji=False)
     else:  # the terminal: its own width and colour support (NO_COLOR is respected by rich)
         term = Console(highlight=False)
-        console = Console(file=buf, width=term.width, color_system=term.color_system,
+        width = term.width if term.is_terminal else max(term.width, 120)
+        console = Console(file=buf, width=width, color_system=term.color_system,
                           force_terminal=term.is_terminal, highlight=False, emoji=False)
     console.print(table)
     console.print(_summary(plans))
