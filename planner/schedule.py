@@ -260,7 +260,7 @@ def schedule_jobs(
     booked: list[Placement] = []
     unplaced: list[Unplaced] = []
     bays = range(1, calendar.bays + 1)
-    for job in sorted(jobs, key=lambda j: -j.priority):  # stable: ties keep the input order
+    for job in sorted(jobs, key=lambda j: j.priority):  # stable: ties keep the input order
         ready = calendar.parts_ready(job, order_date)
         slot = next(
             (

@@ -267,6 +267,19 @@ def test_move_refusals_say_why():
         move_job(schedule_jobs(away, late, MON, 7, MON), away, late, "A", WED, 1, MON)
 
 
+def test_move_of_a_long_job_needs_whole_days():
+    # One bay: A 3 h Mon [0, 3); B 12 h Tue 8 + Wed 4. B onto Mon: Mon is not empty.
+    jobs = jobs_of(3, 12)
+    c = cal(bays=1, kits=True)
+    plan = schedule_jobs(jobs, c, MON, 7, MON)
+    with pytest.raises(ScheduleError, match="not free all day on 2026-12-07"):
+        move_job(plan, jobs, c, "B", MON, 1, MON)
+    with pytest.raises(ScheduleError, match="needs 2 working days from 2026-12-11"):
+        move_job(plan, jobs, c, "B", FRI, 1, MON)  # the window ends on Sunday
+    moved = move_job(plan, jobs, c, "B", WED, 1, MON)  # onto its own last day: Wed 8 + Thu 4
+    assert where(moved)["B"] == (1, (WED, THU), (8.0, 4.0), 0.0)
+
+
 def test_move_places_an_unplaced_job_once_room_is_made():
     # One bay of 8 h, Mon-Tue. First fit, by hand: A 3 Mon [0, 3); B 2 Mon [3, 5);
     # C 5: Mon has 3 -> Tue [0, 5); D 6: Mon 3, Tue 3 -> unplaced, though {A, C} and {B, D}
