@@ -177,6 +177,11 @@ class Vehicle(DriveSpec):
     in_service_odometer: Odometer = Field(
         default=0, description="Odometer on the in-service day."
     )
+    first_registered: dt.date | None = Field(
+        default=None,
+        description="Day the vehicle was first registered, if it was bought used; with unknown "
+        "belt history the risk model assumes a belt this old.",
+    )
     belt_history: BeltHistory = Field(
         default=BeltHistory.KNOWN,
         description="known: the factory belt (or a recorded job) is the one running; unknown: "

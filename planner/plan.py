@@ -185,9 +185,13 @@ def current_install(vehicle: Vehicle, as_of: dt.date) -> Install | None:
 
 
 def assumed_install(vehicle: Vehicle) -> Install:
-    """For unknown history: assume the belt is as old as the vehicle (field notes)."""
-    return Install(vehicle.in_service, vehicle.in_service_odometer,
-                   "assumed: as old as the vehicle (no belt record)", assumed=True)
+    """For unknown history: assume the belt is as old as the vehicle (field notes).
+
+    The vehicle's whole odometer counts; its age runs from first registration when known, else
+    from entering service (which understates the age of a car bought used).
+    """
+    start = vehicle.first_registered or vehicle.in_service
+    return Install(start, 0.0, "assumed: as old as the vehicle (no belt record)", assumed=True)
 
 
 def odometer_points(vehicle: Vehicle, as_of: dt.date) -> list[tuple[dt.date, float]]:
@@ -339,8 +343,8 @@ def plan_vehicle(vehicle: Vehicle, fleet: Fleet, as_of: dt.date) -> VehiclePlan:
 
     notes.insert(0, _deciding_note(deciding, status, spec, install, due, remaining, unit))
     if status is Status.OVERDUE:
-        notes.insert(1, "past its interval: at risk of a sudden engine stop; book it now and do "
-                     "not run it further than you must")
+        notes.insert(1, "past its interval: treat it as at risk of a sudden engine stop and "
+                     "book the job now")
     return VehiclePlan(
         vehicle, spec, status, consequence, install, use,
         due_odometer=due_odometer,

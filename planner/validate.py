@@ -159,6 +159,9 @@ def _check_dates_and_odometers(v: Vehicle, add: Any) -> None:
                 hint="correct the date, or set in_service to the day the vehicle first went "
                 "into service",
             )
+    if v.first_registered is not None and v.first_registered > v.in_service:
+        add(f"first_registered {v.first_registered} is after in_service {v.in_service}",
+            "first_registered", hint="a vehicle is registered before it enters your service")
     if not EARLIEST_DATE <= v.in_service <= LATEST_DATE:
         add(f"in_service {v.in_service.isoformat()} is outside {EARLIEST_DATE.year}-"
             f"{LATEST_DATE.year}", "in_service", hint="check the year")

@@ -13,6 +13,9 @@ from hypothesis import strategies as st
 from scipy import integrate, optimize, special, stats
 
 from planner.reliability import (
+    _WG,
+    _WGK,
+    _XGK,
     ReplacementOptimum,
     WeibullFit,
     _life_integral,
@@ -62,10 +65,16 @@ def test_conditional_failure_matches_scipy(beta: float, eta: float) -> None:
     for frac in FRACTIONS:
         for window in (1e-4, 0.05, 0.5):
             t1, t2 = frac * eta, (frac + window) * eta
-            # reference: scipy.stats.weibull_min (general-purpose library), 1 - R(t2)/R(t1)
-            expected = 1 - _sf(t2, beta, eta) / _sf(t1, beta, eta)
+            # reference: scipy.stats.weibull_min (general-purpose library), 1 - R(t2)/R(t1),
+            # taken through logsf because R(t1) underflows at the far end of the grid
+            log_ratio = stats.weibull_min.logsf(t2, beta, scale=eta) - stats.weibull_min.logsf(
+                t1, beta, scale=eta
+            )
             got = conditional_failure(t1, t2, beta, eta)
-            assert got == pytest.approx(expected, rel=1e-9, abs=1e-15)
+            assert got == pytest.approx(-math.expm1(log_ratio), rel=1e-10, abs=0)
+            if _sf(t1, beta, eta) > 1e-300:
+                plain = 1 - _sf(t2, beta, eta) / _sf(t1, beta, eta)
+                assert got == pytest.approx(plain, rel=1e-9, abs=1e-15)
 
 
 def test_conditional_failure_far_in_the_tail() -> None:
@@ -229,6 +238,17 @@ def _scipy_cost_rate(u: float, beta: float, eta: float, cp: float, cf: float) ->
     return (cp * r + cf * (1 - r)) / life
 
 
+def test_gauss_kronrod_rules_are_exact_to_their_degree() -> None:
+    # Kronrod 15 is exact to degree 22, its embedded Gauss 7 to degree 13
+    # (reference: exact moments 2/(k+1) of x^k on [-1, 1]; Piessens et al., QUADPACK, 1983)
+    for k in range(0, 23, 2):
+        kronrod = _WGK[7] * (k == 0) + sum(2 * w * x**k for w, x in zip(_WGK[:7], _XGK[:7], strict=True))
+        assert kronrod == pytest.approx(2 / (k + 1), rel=1e-14)
+    for k in range(0, 14, 2):
+        gauss = _WG[3] * (k == 0) + sum(2 * w * _XGK[j] ** k for w, j in zip(_WG[:3], (1, 3, 5), strict=True))
+        assert gauss == pytest.approx(2 / (k + 1), rel=1e-14)
+
+
 @pytest.mark.parametrize("beta", [0.3, 0.7, 1.0, 1.5, 3.7, 8.0])
 @pytest.mark.parametrize("frac", [1e-6, 0.3, 1.0, 2.5, 10.0])
 def test_life_integral_matches_quad_and_incomplete_gamma(beta: float, frac: float) -> None:
@@ -289,16 +309,25 @@ def test_optimum_matches_minimize_scalar(beta, eta, cp, cf, upper) -> None:
     assert lhs == pytest.approx(cp / (cf - cp), rel=1e-5)
 
 
-def test_scan_finds_the_basin_a_local_search_misses() -> None:
-    # Steep wear-out, failure only 1.5x the planned job: the cost rate is nearly flat past eta.
+def test_scan_finds_the_global_minimum_on_a_flat_cost_curve() -> None:
+    # Steep wear-out, failure only 1.5x the planned job: past eta the cost rate is nearly flat, and
+    # a bounded local search over (0, 5] (scipy 1.17 minimize_scalar) stops near u = 3.26 there.
     beta, eta, cp, cf, upper = 8.0, 1.0, 1.0, 1.5, 5.0
     opt = optimal_replacement(beta, eta, cp, cf, upper)
     assert opt is not None and not opt.at_upper_bound
-    grid = np.linspace(0.05, upper, 2000)
-    # reference: brute-force grid of scipy.integrate.quad cost rates (general-purpose library)
-    brute = min(_scipy_cost_rate(float(u), beta, eta, cp, cf) for u in grid)
-    assert opt.cost_rate <= brute * (1 + 1e-12)
-    assert opt.cost_rate == pytest.approx(brute, rel=1e-5)
+    # reference: brute-force grid, life integral in closed form eta/beta * lower incomplete
+    # gamma(1/beta, (u/eta)^beta) via scipy.special (general-purpose library)
+    u = np.linspace(1e-3, upper, 20_001)
+    r = np.exp(-((u / eta) ** beta))
+    life = eta / beta * special.gamma(1 / beta) * special.gammainc(1 / beta, (u / eta) ** beta)
+    i = int(np.argmin((cp * r + cf * (1 - r)) / life))
+    # reference: scipy.optimize.minimize_scalar, bounded, inside the brute-force basin
+    ref = optimize.minimize_scalar(
+        _scipy_cost_rate, bounds=(u[i - 1], u[i + 1]), args=(beta, eta, cp, cf),
+        method="bounded", options={"xatol": 1e-12},
+    )
+    assert opt.u_star == pytest.approx(ref.x, rel=1e-5)
+    assert opt.cost_rate == pytest.approx(ref.fun, rel=1e-10)
 
 
 @pytest.mark.parametrize(
