@@ -270,7 +270,7 @@ def age_replacement_cost_rate(u: float, beta: float, eta: float, cp: float, cf: 
     if not (cp > 0 and cf > 0 and math.isfinite(cp) and math.isfinite(cf)):
         raise ValueError(f"costs must be positive and finite, got cp={cp!r}, cf={cf!r}")
     h = _hazard(u, beta, eta)
-    return (cp * math.exp(-h) - cp * math.expm1(-h)) / _life_integral(u, beta, eta)
+    return (cp * math.exp(-h) - cf * math.expm1(-h)) / _life_integral(u, beta, eta)
 
 
 def _golden(f: Callable[[float], float], a: float, b: float, tol: float) -> tuple[float, float]:

@@ -242,10 +242,12 @@ def test_gauss_kronrod_rules_are_exact_to_their_degree() -> None:
     # Kronrod 15 is exact to degree 22, its embedded Gauss 7 to degree 13
     # (reference: exact moments 2/(k+1) of x^k on [-1, 1]; Piessens et al., QUADPACK, 1983)
     for k in range(0, 23, 2):
-        kronrod = _WGK[7] * (k == 0) + sum(2 * w * x**k for w, x in zip(_WGK[:7], _XGK[:7], strict=True))
+        pairs = zip(_WGK[:7], _XGK[:7], strict=True)
+        kronrod = _WGK[7] * (k == 0) + sum(2 * w * x**k for w, x in pairs)
         assert kronrod == pytest.approx(2 / (k + 1), rel=1e-14)
     for k in range(0, 14, 2):
-        gauss = _WG[3] * (k == 0) + sum(2 * w * _XGK[j] ** k for w, j in zip(_WG[:3], (1, 3, 5), strict=True))
+        pairs = zip(_WG[:3], (1, 3, 5), strict=True)
+        gauss = _WG[3] * (k == 0) + sum(2 * w * _XGK[j] ** k for w, j in pairs)
         assert gauss == pytest.approx(2 / (k + 1), rel=1e-14)
 
 
