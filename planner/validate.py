@@ -109,7 +109,7 @@ def check_vehicles(
                 )
         spec = {f: _resolved(v, profile, f) for f in ("drive", "interval_distance",
                                                        "interval_months")}
-        if v.engine not in engine_ids or profile is not None:
+        if v.engine is None or profile is not None:  # an unknown profile is reported above
             _check_drive(spec, v, add)
         _check_dates_and_odometers(v, add)
     return problems
