@@ -14,6 +14,7 @@ from collections.abc import Iterable, Sequence
 from typing import Any
 
 from planner.plan import VehiclePlan
+from planner.risk import FleetAssessment, Risk
 
 CAUTION = (
     "The maker's schedule and service information come first: this plan is a planning aid, not "
@@ -27,7 +28,7 @@ FIELDS: tuple[str, ...] = (
     "install_date", "install_odometer", "interval_distance", "interval_months",
     "est_odometer", "daily_distance", "distance_remaining", "time_due_date",
     "distance_due_date", "due_date", "days_remaining", "deciding_limit", "notes",
-    "life_used",
+    "life_used", "p_fail_horizon", "p_fail_before_due", "expected_loss", "risk_basis",
 )
 
 
@@ -39,8 +40,9 @@ def _iso(d: dt.date | None) -> str | None:
     return None if d is None else d.isoformat()
 
 
-def plan_record(p: VehiclePlan, factor: float = 1.0) -> dict[str, Any]:
-    """One vehicle's plan as a flat record: distances whole, dates ISO 8601, unknowns None.
+def plan_record(p: VehiclePlan, factor: float = 1.0, risk: Risk | None = None) -> dict[str, Any]:
+    """One vehicle's plan (and risk) as a flat record: distances whole, dates ISO 8601,
+    unknowns None.
 
     `factor` converts distances for display in another unit (see `planner.units`).
     """
@@ -72,22 +74,44 @@ def plan_record(p: VehiclePlan, factor: float = 1.0) -> dict[str, Any]:
         "deciding_limit": p.deciding_limit.value if p.deciding_limit else None,
         "notes": list(p.notes),
         "life_used": None if p.life_used is None else round(p.life_used, 3),
+        "p_fail_horizon": _prob(risk.p_fail_horizon) if risk else None,
+        "p_fail_before_due": _prob(risk.p_fail_before_due) if risk else None,
+        "expected_loss": None if risk is None or risk.expected_loss is None
+        else round(risk.expected_loss, 2),
+        "risk_basis": risk.basis if risk else None,
     }
 
 
-def table_columns(unit: str) -> list[tuple[str, str]]:
+def _prob(x: float | None) -> float | None:
+    return None if x is None else round(x, 6)
+
+
+def assessment_records(a: FleetAssessment, factor: float = 1.0) -> list[dict[str, Any]]:
+    """Records of a whole assessment, in its order, risk notes appended to each."""
+    out = []
+    for p in a.plans:
+        r = a.risks.get(p.id)
+        rec = plan_record(p, factor, r)
+        if r is not None and r.notes:
+            rec["notes"] = rec["notes"] + list(r.notes)
+        out.append(rec)
+    return out
+
+
+def table_columns(unit: str, horizon_days: int = 90) -> list[tuple[str, str]]:
     """(field, heading) of the human-readable table, shared by the terminal and Markdown."""
     return [
         ("id", "Vehicle"), ("label", "Label"), ("drive", "Drive"),
         ("consequence", "If it fails"), ("status", "Status"),
         ("distance_remaining", f"Left ({unit})"), ("due_date", "Due"),
-        ("days_remaining", "Days"), ("deciding_limit", "Decided by"),
-        ("life_used", "Life used"),
+        ("days_remaining", "Days"), ("deciding_limit", "Limit"),
+        ("life_used", "Life used"), ("p_fail_horizon", f"Risk {horizon_days} d"),
+        ("expected_loss", "Exp. loss"),
     ]
 
 
 # Fractions shown as percentages in tables (the records keep fractions).
-PERCENT_FIELDS = {"life_used"}
+PERCENT_FIELDS = {"life_used", "p_fail_horizon", "p_fail_before_due"}
 
 
 def display(value: Any, field: str = "") -> str:
@@ -95,13 +119,15 @@ def display(value: Any, field: str = "") -> str:
     if value is None:
         return "–"
     if field in PERCENT_FIELDS:
-        return f"{value * 100:.0f} %"
+        if field != "life_used" and 0 < value < 0.001:
+            return "<0.1 %"
+        return f"{value * 100:.0f} %" if field == "life_used" else f"{value * 100:.1f} %"
     if isinstance(value, bool):
         return "yes" if value else "no"
     if isinstance(value, int):
         return f"{value:,}"
     if isinstance(value, float):
-        return f"{value:,.1f}"
+        return f"{value:,.0f}" if field == "expected_loss" else f"{value:,.1f}"
     if isinstance(value, (list, tuple)):
         return "; ".join(str(v) for v in value)
     return str(value)

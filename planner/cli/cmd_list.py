@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import argparse
+import dataclasses
 import io
 from collections import Counter
 from collections.abc import Sequence
@@ -14,7 +15,8 @@ from rich.text import Text
 
 from planner import export
 from planner.cli.common import add_as_of, as_of_or_today, emit, load, pick_words
-from planner.plan import Status, VehiclePlan, plan_fleet
+from planner.plan import Status, VehiclePlan
+from planner.risk import ORDERS, assess_fleet_plan
 from planner.units import distance_factor
 
 FORMATS = ("table", "csv", "json", "markdown")
@@ -42,6 +44,9 @@ def register(sub: argparse._SubParsersAction) -> None:
     p.add_argument("--status", metavar="LIST",
                    help="only these statuses, comma separated (e.g. overdue,due-soon)")
     p.add_argument("--format", choices=FORMATS, default="table", help="output format")
+    p.add_argument("--sort", choices=ORDERS, default="triage",
+                   help="triage: overdue and no-record first, then by expected loss (default); "
+                   "due-date: by status, consequence, then due date")
     p.add_argument("--unit", choices=("km", "mi"), default=None,
                    help="show distances in this unit (default: the file's unit)")
     p.add_argument("-o", "--output", metavar="OUT", help="write to this file instead of stdout")
@@ -52,23 +57,29 @@ def run(args: argparse.Namespace) -> int:
     loaded = load(args.file)
     fleet = loaded.fleet
     as_of = as_of_or_today(args)
-    plans = plan_fleet(fleet, as_of)
+    assessment = assess_fleet_plan(fleet, as_of, args.sort)
     if args.status:
         wanted = set(pick_words(args.status, [s.value for s in Status], "status"))
-        plans = [p for p in plans if p.status.value in wanted]
+        assessment = dataclasses.replace(
+            assessment, plans=tuple(p for p in assessment.plans if p.status.value in wanted))
+    plans = assessment.plans
     unit = args.unit or fleet.unit
     factor = distance_factor(fleet.unit, unit)
-    records = [export.plan_record(p, factor) for p in plans]
+    records = export.assessment_records(assessment, factor)
     title = f"Cam-drive plan: {fleet.fleet.name or loaded.path.name} on {as_of}"
+    columns = export.table_columns(unit, assessment.model.horizon_days)
+    footer = [assessment.model.describe()]
     if args.format == "json":
-        text = export.to_json(records, as_of, unit)
+        text = export.to_json(records, as_of, unit, {
+            "order": args.sort, "risk_assumptions": assessment.model.as_dict()})
     elif args.format == "csv":
         text = export.to_csv(records, export.FIELDS)
     elif args.format == "markdown":
-        text = export.to_markdown(records, export.table_columns(unit), title,
-                                  preface=[_summary(plans)])
+        text = export.to_markdown(records, columns, title, preface=[_summary(plans)],
+                                  footer=[f"_{line}_" for line in footer] + [""])
     else:
-        text = render_table(plans, records, unit, title, plain=args.output not in (None, "-"))
+        text = render_table(plans, records, columns, title, footer,
+                            plain=args.output not in (None, "-"))
     emit(text, args.output, loaded.path, what=f"{len(records)} vehicles")
     return 0
 
@@ -79,32 +90,58 @@ def _summary(plans: Sequence[VehiclePlan]) -> str:
     return f"{len(plans)} vehicles: " + (", ".join(parts) if parts else "none")
 
 
-def render_table(plans: Sequence[VehiclePlan], records: Sequence[dict], unit: str, title: str,
+# Dropped first when the terminal is too narrow for every column.
+DROP_ORDER = ("label", "expected_loss", "deciding_limit", "drive", "life_used", "days_remaining")
+
+
+def fit_columns(columns: Sequence[tuple[str, str]], records: Sequence[dict],
+                width: int) -> list[tuple[str, str]]:
+    """Leave out the least needed columns until the rest fit `width` without folding."""
+    def need(field: str, heading: str) -> int:
+        cells = [len(export.display(r.get(field), field)) for r in records]
+        return max([len(heading), *cells]) + 3
+
+    kept = list(columns)
+    for field in DROP_ORDER:
+        if sum(need(f, h) for f, h in kept) <= width:
+            break
+        kept = [c for c in kept if c[0] != field]
+    return kept
+
+
+def _console(buf: io.StringIO, plain: bool) -> Console:
+    if plain:  # a file: no colour codes, a width that fits every column
+        return Console(file=buf, width=160, color_system=None, highlight=False, emoji=False)
+    # The terminal: its own width and colour support (rich respects NO_COLOR).
+    term = Console(highlight=False)
+    width = term.width if term.is_terminal else max(term.width, 160)
+    return Console(file=buf, width=width, color_system=term.color_system,
+                   force_terminal=term.is_terminal, highlight=False, emoji=False)
+
+
+def render_table(plans: Sequence[VehiclePlan], records: Sequence[dict],
+                 columns: Sequence[tuple[str, str]], title: str, footer: Sequence[str] = (),
                  plain: bool = False) -> str:
+    buf = io.StringIO()
+    console = _console(buf, plain)
+    columns = fit_columns(columns, records, console.width)
     table = Table(title=title, title_justify="left", title_style="bold", header_style="bold",
                   box=box.SIMPLE_HEAD, pad_edge=False, expand=False)
-    for _, heading in export.table_columns(unit):
-        right = heading.startswith(("Left", "Days", "Life"))
-        table.add_column(heading, justify="right" if right else "left",
-                         overflow="fold", no_wrap=heading != "Label",
-                         min_width=18 if heading == "Label" else None)
+    for field, heading in columns:
+        right = field in ("distance_remaining", "days_remaining", "life_used", "p_fail_horizon",
+                          "expected_loss")
+        table.add_column(heading, justify="right" if right else "left", no_wrap=True)
     for rec in records:
         cells = []
-        for field, _ in export.table_columns(unit):
+        for field, _ in columns:
             value = export.display(rec.get(field), field)
             style = STATUS_STYLE.get(value) if field == "status" else (
                 CONSEQUENCE_STYLE.get(value) if field == "consequence" else None)
             cells.append(Text(value, style=style or ""))  # Text: file content is never markup
         table.add_row(*cells)
-    buf = io.StringIO()
-    if plain:  # a file: no colour codes, a width that fits every column
-        console = Console(file=buf, width=160, color_system=None, highlight=False, emoji=False)
-    else:  # the terminal: its own width and colour support (NO_COLOR is respected by rich)
-        term = Console(highlight=False)
-        width = term.width if term.is_terminal else max(term.width, 120)
-        console = Console(file=buf, width=width, color_system=term.color_system,
-                          force_terminal=term.is_terminal, highlight=False, emoji=False)
     console.print(table)
     console.print(_summary(plans))
+    for line in footer:
+        console.print(Text(line, style="italic"))
     console.print(Text(export.CAUTION, style="dim"))
     return buf.getvalue()
