@@ -27,6 +27,7 @@ from planner.fleet import (
 RATE_WINDOW_DAYS = 365
 RATE_MIN_SPAN_DAYS = 14
 STALE_READING_DAYS = 90
+MAX_PROJECTION_DAYS = 36525
 
 
 class Status(StrEnum):
@@ -324,8 +325,11 @@ def plan_vehicle(vehicle: Vehicle, fleet: Fleet, as_of: dt.date) -> VehiclePlan:
     time_due = add_months(install.date, spec.interval_months)
     distance_due: dt.date | None = None
     if use.daily_distance:
-        # Floor: the day on which the limit is reached, never a day late.
-        distance_due = as_of + dt.timedelta(days=math.floor(remaining / use.daily_distance))
+        # Floor: the day on which the limit is reached, never a day late. A projection past a
+        # century means "not by distance" (a parked vehicle), which the age limit overtakes.
+        days = remaining / use.daily_distance
+        if days < MAX_PROJECTION_DAYS:
+            distance_due = as_of + dt.timedelta(days=math.floor(days))
     elif remaining <= 0:
         distance_due = use.last_date
     if distance_due is not None and distance_due < time_due:

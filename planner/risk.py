@@ -155,13 +155,21 @@ def fit_from_history(fleet: Fleet, as_of: dt.date) -> FitReport:
                      "fit shown only; set [risk] use_fleet_fit = true to use it")
 
 
+def fitted_model(fleet: Fleet, report: FitReport) -> RiskModel | None:
+    """The law the fleet's own history gives, whether or not it is in force."""
+    if report.fit is None:
+        return None
+    return RiskModel(report.fit.beta, report.fit.eta, FLEET_FIT,
+                     fleet.risk.share_failed_at_interval, fleet.risk.horizon_days, report)
+
+
 def risk_model(fleet: Fleet, as_of: dt.date) -> RiskModel:
     """The law in force: the fleet fit when asked for and available, else the assumptions."""
     settings = fleet.risk
     report = fit_from_history(fleet, as_of)
-    if report.used and report.fit is not None:
-        return RiskModel(report.fit.beta, report.fit.eta, FLEET_FIT,
-                         settings.share_failed_at_interval, settings.horizon_days, report)
+    fitted = fitted_model(fleet, report)
+    if report.used and fitted is not None:
+        return fitted
     eta = reliability.eta_from_share(settings.share_failed_at_interval, settings.shape)
     return RiskModel(settings.shape, eta, ASSUMED, settings.share_failed_at_interval,
                      settings.horizon_days, report)
@@ -266,11 +274,9 @@ def replacement_point(profile_id: str, spec: Spec, fleet: Fleet,
                                 "no finite optimum (shape <= 1): replace at the maker's interval")
     if best.at_upper_bound:
         return ReplacementPoint(profile_id, cp, cf, 1.0, True,
-                                "the cost optimum lies at or beyond the maker's interval: "
-                                "replace at the maker's interval, never later")
+                                "optimum at or past the maker's interval: capped there")
     return ReplacementPoint(profile_id, cp, cf, best.u_star, False,
-                            f"replace at {best.u_star:.0%} of the interval to minimise cost "
-                            "per unit of life (within the maker's interval)")
+                            "earlier than the maker's interval is cheaper per unit of life")
 
 
 def replacement_points(fleet: Fleet, model: RiskModel) -> list[ReplacementPoint]:
