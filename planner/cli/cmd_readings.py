@@ -1,0 +1,66 @@
+"""`beltplan readings FILE --from export.csv`: add odometer readings from a weekly export."""
+
+from __future__ import annotations
+
+import argparse
+import datetime as dt
+
+from planner import importer
+from planner.cli.cmd_import import add_csv_options, read_csv
+from planner.cli.common import load
+from planner.fileio import backup_path, save_fleet_text
+
+EPILOG = """\
+examples:
+  beltplan readings fleet_examples/courier_fleet.toml --from fleet_examples/weekly_readings.csv
+  beltplan readings fleet.toml --from fuelcard.csv --map "Registration=id" --dry-run
+
+fields a column can fill (--map COLUMN=field):
+  id                vehicle id as in the fleet file (map a plate column here if the fleet's
+                    ids are plates; case, spaces and dashes are ignored when matching)
+  reading_date      day of the reading (ISO 8601, or dd/mm/yyyy with --day-first, ...)
+  reading_odometer  odometer, in the fleet file's unit ("12,345 km" is fine; another unit
+                    is rejected, never converted)
+
+A reading already in the file (same vehicle, day and odometer) is skipped. A reading that
+goes backwards, is dated before the vehicle entered service or after today, or names no
+vehicle in the file is rejected with the reason. The file is saved with its comments and
+layout, atomically, with the previous version kept as FILE.bak.
+"""
+
+
+def register(sub: argparse._SubParsersAction) -> None:
+    p = sub.add_parser(
+        "readings", help="add odometer readings from a CSV export to a fleet file",
+        description="Add the odometer readings of a CSV export (fuel card, telematics, "
+        "driver's log) to a fleet file, matched by vehicle id.",
+        epilog=EPILOG, formatter_class=argparse.RawDescriptionHelpFormatter,
+    )
+    p.add_argument("file", help="fleet file (TOML) to update")
+    p.add_argument("--from", dest="csv", metavar="EXPORT.csv", required=True,
+                   help="the readings, as CSV")
+    add_csv_options(p)
+    p.add_argument("--dry-run", action="store_true",
+                   help="print what would be added, skipped and rejected; save nothing")
+    p.set_defaults(run=run)
+
+
+def run(args: argparse.Namespace) -> int:
+    loaded = load(args.file)
+    decoded = read_csv(args.csv)
+    # The clock is read here, at the edge: a reading dated after today is a typing slip.
+    result = importer.import_readings(
+        decoded.text, loaded.fleet, loaded.text, source=args.csv,
+        column_map=importer.parse_map(args.map), date_order=args.date_order,
+        today=dt.date.today(), decoded=decoded)
+    print("\n".join(result.report))
+    if args.dry_run:
+        print(f"\nDry run: {args.file} was not changed.")
+    elif not result.added:
+        print(f"\nNothing to add: {args.file} was not changed.")
+    else:
+        save_fleet_text(loaded, result.text)
+        print(f"\nSaved {args.file} with {len(result.added)} new reading"
+              f"{'s' * (len(result.added) != 1)} (the previous version is "
+              f"{backup_path(loaded.path)}).")
+    return 0
