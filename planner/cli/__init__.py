@@ -16,7 +16,7 @@ from planner.cli.common import EXIT_USER_ERROR, fail
 from planner.errors import PlannerError
 
 # One line per command module; the order is the order of `beltplan --help`.
-COMMANDS = ("check", "import", "list", "readings", "risk", "schema")
+COMMANDS = ("check", "import", "list", "readings", "risk", "week", "schema")
 
 DESCRIPTION = """\
 Timing-belt service and failure-risk planner.
