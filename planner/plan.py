@@ -6,12 +6,11 @@ outputs are plain frozen dataclasses that exports, the CLI and the UI only displ
 
 from __future__ import annotations
 
+import calendar
 import datetime as dt
 import math
 from dataclasses import dataclass
 from enum import StrEnum
-
-from dateutil.relativedelta import relativedelta
 
 from planner.fleet import (
     SPEC_FIELDS,
@@ -242,8 +241,16 @@ def usage(vehicle: Vehicle, fleet: Fleet, as_of: dt.date) -> Usage:
 
 
 def add_months(day: dt.date, months: int) -> dt.date:
-    """Calendar months with end-of-month clipping (2024-02-29 + 36 months = 2027-02-28)."""
-    return day + relativedelta(months=months)
+    """Calendar months with end-of-month clipping (2024-02-29 + 36 months = 2027-02-28).
+
+    The semantics of python-dateutil's `relativedelta(months=…)`, which the tests check it
+    against; written out because it runs for every belt on every plan.
+    """
+    index = day.year * 12 + (day.month - 1) + months
+    year, month = divmod(index, 12)
+    month += 1
+    last = calendar.monthrange(year, month)[1]
+    return dt.date(year, month, min(day.day, last))
 
 
 def life_fraction(spec: Spec, install: Install, est_odometer: float | None,
@@ -259,9 +266,10 @@ def life_fraction(spec: Spec, install: Install, est_odometer: float | None,
     return max(by_time, by_distance, 0.0)
 
 
-def plan_vehicle(vehicle: Vehicle, fleet: Fleet, as_of: dt.date) -> VehiclePlan:
-    """Apply every planning rule to one vehicle."""
-    spec = resolve_spec(vehicle, fleet)
+def plan_vehicle(vehicle: Vehicle, fleet: Fleet, as_of: dt.date,
+                 spec: Spec | None = None) -> VehiclePlan:
+    """Apply every planning rule to one vehicle (`spec`: its resolved spec, if known)."""
+    spec = spec or resolve_spec(vehicle, fleet)
     consequence = consequence_of(spec)
     use = usage(vehicle, fleet, as_of)
     unit = fleet.unit
@@ -381,6 +389,21 @@ def sort_key(p: VehiclePlan) -> tuple:
     return (p.status.rank, 0 if p.consequence.severe else 1, due, p.id)
 
 
+_SPEC_SET = frozenset(SPEC_FIELDS)
+
+
 def plan_fleet(fleet: Fleet, as_of: dt.date) -> list[VehiclePlan]:
     """Every vehicle's plan, in the default order."""
-    return sorted((plan_vehicle(v, fleet, as_of) for v in fleet.vehicles), key=sort_key)
+    shared: dict[tuple[str | None, Duty], Spec] = {}  # vehicles that override nothing share one
+    plans = []
+    for v in fleet.vehicles:
+        if v.model_fields_set.isdisjoint(_SPEC_SET):
+            key = (v.engine, v.duty)
+            spec = shared.get(key)
+            if spec is None:
+                spec = shared[key] = resolve_spec(v, fleet)
+        else:
+            spec = resolve_spec(v, fleet)
+        plans.append(plan_vehicle(v, fleet, as_of, spec))
+    plans.sort(key=sort_key)
+    return plans

@@ -102,14 +102,15 @@ class Risk:
 
 # -- the fleet's own history -------------------------------------------------------------------
 
-def life_records(vehicle: Vehicle, fleet: Fleet, as_of: dt.date) -> tuple[list[float], list[float]]:
+def life_records(vehicle: Vehicle, fleet: Fleet, as_of: dt.date,
+                 plan: VehiclePlan | None = None) -> tuple[list[float], list[float]]:
     """Lives of the vehicle's belts as interval shares: (failed, right-censored).
 
     A `failed` job ends a belt's life with a failure; a `scheduled` or `precaution` job, and the
     belt still running on `as_of`, are suspensions (Nelson, Applied Life Data Analysis). A belt
     whose start is unknown (bought used, before the first job) is left out.
     """
-    spec = resolve_spec(vehicle, fleet)
+    spec = plan.spec if plan is not None else resolve_spec(vehicle, fleet)
     if not spec.drive.has_interval:
         return [], []
     failed: list[float] = []
@@ -125,32 +126,41 @@ def life_records(vehicle: Vehicle, fleet: Fleet, as_of: dt.date) -> tuple[list[f
                 (failed if job.reason is JobReason.FAILED else censored).append(u)
         start = Install(job.date, job.odometer, "job")
     if start is not None:  # the running belt: censored at its life so far
-        est = usage(vehicle, fleet, as_of).est_odometer
+        est = (plan.usage if plan is not None else usage(vehicle, fleet, as_of)).est_odometer
         u = life_fraction(spec, start, est, as_of)
         if u is not None and u > 0:
             censored.append(u)
     return failed, censored
 
 
-def fit_from_history(fleet: Fleet, as_of: dt.date) -> FitReport:
-    """Censored maximum-likelihood Weibull fit to every belt life in the file."""
+def fit_from_history(fleet: Fleet, as_of: dt.date,
+                     plans: Sequence[VehiclePlan] | None = None, fit: bool = True) -> FitReport:
+    """Censored maximum-likelihood Weibull fit to every belt life in the file.
+
+    `plans` (of the same date) saves resolving each vehicle's spec and usage again; with
+    `fit=False` only the failures and suspensions are counted.
+    """
     failed: list[float] = []
     censored: list[float] = []
+    by_id = {p.id: p for p in plans} if plans is not None else {}
     for v in fleet.vehicles:
-        f, c = life_records(v, fleet, as_of)
+        f, c = life_records(v, fleet, as_of, by_id.get(v.id))
         failed += f
         censored += c
     if len(failed) < MIN_FAILURES_FOR_FIT:
         return FitReport(len(failed), len(censored), None, False,
                          f"{len(failed)} recorded failure{'s' if len(failed) != 1 else ''}: too "
                          f"few to fit (at least {MIN_FAILURES_FOR_FIT}); the assumptions stay")
+    if not fit:
+        return FitReport(len(failed), len(censored), None, False,
+                         "fit not computed here: see `beltplan risk`")
     try:
-        fit = reliability.fit_weibull_censored(failed, censored)
+        result = reliability.fit_weibull_censored(failed, censored)
     except ValueError as exc:
         return FitReport(len(failed), len(censored), None, False,
                          f"no fit: {exc}; the assumptions stay")
     used = fleet.risk.use_fleet_fit
-    return FitReport(len(failed), len(censored), fit, used,
+    return FitReport(len(failed), len(censored), result, used,
                      "fit in use ([risk] use_fleet_fit = true)" if used else
                      "fit shown only; set [risk] use_fleet_fit = true to use it")
 
@@ -163,10 +173,14 @@ def fitted_model(fleet: Fleet, report: FitReport) -> RiskModel | None:
                      fleet.risk.share_failed_at_interval, fleet.risk.horizon_days, report)
 
 
-def risk_model(fleet: Fleet, as_of: dt.date) -> RiskModel:
-    """The law in force: the fleet fit when asked for and available, else the assumptions."""
+def risk_model(fleet: Fleet, as_of: dt.date, plans: Sequence[VehiclePlan] | None = None,
+               always_fit: bool = True) -> RiskModel:
+    """The law in force: the fleet fit when asked for and available, else the assumptions.
+
+    With `always_fit=False` the fit is computed only when the file asks to use it.
+    """
     settings = fleet.risk
-    report = fit_from_history(fleet, as_of)
+    report = fit_from_history(fleet, as_of, plans, fit=always_fit or settings.use_fleet_fit)
     fitted = fitted_model(fleet, report)
     if report.used and fitted is not None:
         return fitted
@@ -310,7 +324,7 @@ def assess_fleet_plan(fleet: Fleet, as_of: dt.date, order: str = "triage") -> Fl
     if order not in ORDERS:
         raise ValueError(f"unknown order {order!r}")
     plans = plan_fleet(fleet, as_of)  # already in due-date (default status) order
-    model = risk_model(fleet, as_of)
+    model = risk_model(fleet, as_of, plans, always_fit=False)
     risks = assess_fleet(plans, fleet, model, as_of)
     if order == "triage":
         plans = triage(plans, risks)
