@@ -184,12 +184,15 @@ def read_table(text: str, name: str) -> CsvTable:
                 continue
             rows.append(Row(number, line, tuple(cells)))
     except csv.Error as exc:
-        line = reader.line_num + line_offset
+        if "end of data" in str(exc):  # the row's opening quote is never closed
+            problem = Problem("a quoted text starts in this row and never ends", file=name,
+                              line=start + line_offset)
+        else:
+            problem = Problem(f"CSV error: {exc}", file=name, line=reader.line_num + line_offset)
         raise PlannerError(
             f"{name} is not valid CSV",
             "Fix the quoting at the place shown (a quote inside a quoted text is written "
-            "twice: \"\"), or export the sheet again; nothing was imported.",
-            [Problem(f"CSV error: {exc}", file=name, line=line)],
+            "twice: \"\"), or export the sheet again; nothing was imported.", [problem],
         ) from None
     if header is None:
         raise PlannerError(f"{name} is empty", "Export the sheet with its header row.")
@@ -650,6 +653,7 @@ class _Sheet:
     fields: Mapping[str, FieldInfo]
     uses: list[ColumnUse]
     unit: str
+    fixed_unit: bool = False  # the unit is the fleet file's, not an option
     date_orders: dict[str, str | None] = field(default_factory=dict)
     marks: dict[str, str | None] = field(default_factory=dict)
     decisions: list[str] = field(default_factory=list)
@@ -693,8 +697,10 @@ class _Sheet:
                 raise CellError(f"unknown unit {word!r}", "write km or mi, or no unit")
             if unit != self.unit:
                 raise CellError(f"the value is in {unit}, but the fleet's distances are in "
-                                f"{self.unit}", f"give it in {self.unit}, or import the whole "
-                                f"sheet with --unit {unit}; nothing is converted")
+                                f"{self.unit}", f"give it in {self.unit}" +
+                                ("" if self.fixed_unit else
+                                 f", or import the whole sheet with --unit {unit}") +
+                                "; nothing is converted")
             return _whole(number)
         if kind == "months":
             in_years = (word in _YEAR_WORDS or word in ("y", "a")) if word else \
@@ -733,7 +739,7 @@ def _open_sheet(text: str, source: str, fields: Mapping[str, FieldInfo],
                                f"other column with --map \"COLUMN={b}\", or leave this one out "
                                f"with --map \"COLUMN={IGNORE}\"")
     problems: list[Problem] = []
-    sheet = _Sheet(source, table, fields, uses, unit or "km")
+    sheet = _Sheet(source, table, fields, uses, unit or "km", fixed_unit)
     for use in uses:
         if use.field is None:
             continue
@@ -827,12 +833,16 @@ def _read_row(sheet: _Sheet, row: Row, names: Iterable[str]
     return values, problems
 
 
+def _rows(n: int, what: str = "row") -> str:
+    return f"{n} {what}{'s' * (n != 1)}"
+
+
 def _column_report(sheet: _Sheet, decoded: Decoded | None) -> list[str]:
     t = sheet.table
     enc = decoded.encoding if decoded else "text"
     lines = [f"Read {sheet.source}: {enc}, {DELIMITER_NAMES.get(t.delimiter, t.delimiter)}"
-             f"-separated, {len(t.rows) + len(t.problems)} rows after the header"
-             + (f" ({t.blank_rows} blank rows ignored)" if t.blank_rows else "")]
+             f"-separated, {_rows(len(t.rows) + len(t.problems))} after the header"
+             + (f" ({_rows(t.blank_rows, 'blank row')} ignored)" if t.blank_rows else "")]
     if decoded and decoded.note:
         lines.append(f"  note: {decoded.note}")
     lines.extend(f"  note: {n}" for n in t.notes)
@@ -847,7 +857,9 @@ def _column_report(sheet: _Sheet, decoded: Decoded | None) -> list[str]:
         lines.append(f"  {what} in {', '.join(repr(h) for h in headers)}: {how}")
     lines.extend(f"  {d}" for d in sheet.decisions)
     words: dict[tuple[str, str], tuple[list[str], int]] = {}
-    for (_, column, text, value), n in sheet.words_read.items():
+    order = {u.header: u.index for u in sheet.uses}
+    for (_, column, text, value), n in sorted(sheet.words_read.items(),
+                                              key=lambda kv: order[kv[0][1]]):
         shown, count = words.get((column, value), ([], 0))
         words[(column, value)] = (shown + [text], count + n)
     for (column, value), (shown, n) in words.items():
@@ -999,8 +1011,11 @@ def _check_vehicle(sheet: _Sheet, row: Row, values: dict[str, Any]) -> list[RowP
             path = tuple(x for x in p.path[2:] if not isinstance(x, int))
             name = _PATH_FIELD.get(path[:2], str(path[0]) if path else "")
             use = sheet.column(name)
-            out.append(RowProblem(row.number, row.line, p.message, use.header if use else None,
-                                  sheet.cell(row, name) if use else None, p.hint))
+            message, hint = p.message, p.hint
+            if message == "required key is missing":
+                message, hint = f"empty: every vehicle needs {name}", ""
+            out.append(RowProblem(row.number, row.line, message, use.header if use else None,
+                                  sheet.cell(row, name) if use else None, hint))
     return out
 
 
@@ -1088,9 +1103,10 @@ def _warnings(sheet: _Sheet, vehicles: list[dict[str, Any]]) -> list[str]:
     if factory:
         shown = ", ".join(factory[:8]) + (f" and {len(factory) - 8} more" if len(factory) > 8
                                           else "")
+        verb = "is" if len(factory) == 1 else "are"
         out.append(f"{len(factory)} vehicle{'s' * (len(factory) != 1)} with no belt job and no "
-                   f"belt_history are planned from the factory belt: {shown}; set belt_history "
-                   "= \"unknown\" for any bought used without a belt record")
+                   f"belt_history {verb} planned from the factory belt: {shown}; set "
+                   "belt_history = \"unknown\" for any bought used without a belt record")
     if sheet.column("in_service_odometer") is None:
         out.append("no in_service_odometer column: every vehicle starts at odometer 0 (the "
                    "file's default); correct it for vehicles bought used")
@@ -1190,9 +1206,12 @@ def import_readings(csv_text: str, fleet: Fleet, fleet_text: str, *, source: str
             reject(f"odometer {_fmt(odo)} is outside 0-{MAX_ODOMETER:,}", "reading_odometer",
                    "check the value")
             continue
-        if any(d == day and o == odo for d, o, k in points[vid] if k == "the reading"):
-            skipped.append(RowProblem(row.number, row.line, f"{vid}: {day} at {_fmt(odo)} {unit} "
-                                      "is already in the file"))
+        same = [k for d, o, k in points[vid] if d == day and o == odo and "reading" in k]
+        if same:
+            where = ("is already in the file" if same[0] == "the reading" else
+                     f"repeats {same[0].replace('the reading of ', '')}")
+            skipped.append(RowProblem(row.number, row.line,
+                                      f"{vid}: {day} at {_fmt(odo)} {unit} {where}"))
             continue
         if day < vehicle.in_service:
             reject(f"dated {day}, before the vehicle entered service ({vehicle.in_service})",
@@ -1215,7 +1234,7 @@ def import_readings(csv_text: str, fleet: Fleet, fleet_text: str, *, source: str
                    f"later day {d} ({_fmt(o)} {unit})", "reading_odometer",
                    "check the reading or its date")
             continue
-        points[vid].append((day, odo, "the reading"))
+        points[vid].append((day, odo, f"the reading of row {row.number}"))
         added.append(NewReading(vid, day, odo, row.number))
     rejected.sort(key=lambda p: p.row)
     text = add_readings(fleet_text, [(r.vehicle, r.date, r.odometer) for r in added])
