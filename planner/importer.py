@@ -1190,8 +1190,8 @@ def import_readings(csv_text: str, fleet: Fleet, fleet_text: str, *, source: str
                         _did_you_mean(raw_id, list(exact)) or
                         "add the vehicle to the fleet file first, or map the column that "
                         "holds the fleet's ids with --map COLUMN=id")
-                rejected.append(RowProblem(row.number, row.line, "no vehicle with this id",
-                                           id_col, raw_id, hint))
+                why = "matches more than one vehicle" if near else "no vehicle with this id"
+                rejected.append(RowProblem(row.number, row.line, why, id_col, raw_id, hint))
                 continue
         vehicle = exact[vid]
 
