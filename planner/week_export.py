@@ -547,8 +547,12 @@ def to_ics(week: WeekPlan, stamp: dt.datetime, opens: dt.time = OPENS) -> str:
     """The booked jobs as an iCalendar file: one VEVENT per job per day, CRLF line ends.
 
     `stamp` is the DTSTAMP (when the file was made; UTC, naive taken as UTC): the caller reads
-    the clock, this function never does.
+    the clock, this function never does. Raises ValueError when nothing is booked: RFC 5545
+    (§3.6) wants at least one component in a calendar.
     """
+    if not week.bookings:
+        raise ValueError(f"no jobs booked between {week.start} and {week.end}: a calendar "
+                         "needs at least one event")
     lines = ["BEGIN:VCALENDAR", "VERSION:2.0", f"PRODID:{PRODID}", "CALSCALE:GREGORIAN",
              "METHOD:PUBLISH"]
     for b in week.bookings:

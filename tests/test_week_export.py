@@ -167,6 +167,16 @@ def test_ics_stamp_is_the_parameter(week):
                                                                   tzinfo=cet))
 
 
+def test_ics_with_nothing_booked_is_refused(capsys):
+    # RFC 5545 §3.6: a calendar holds at least one component. Nothing is due in 2020.
+    early = plan_week(load_fleet(SMALL).fleet, dt.date(2020, 1, 3), include="all-due")
+    assert early.bookings == ()
+    with pytest.raises(ValueError, match="no jobs booked"):
+        to_ics(early, STAMP)
+    code, out, err = run(capsys, "week", str(SMALL), "--as-of", "2020-01-03", "--format", "ics")
+    assert code == 2 and "no calendar written" in err and out == ""
+
+
 def test_ics_golden(week):
     golden("small.ics", to_ics(week, STAMP))
 

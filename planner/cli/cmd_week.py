@@ -87,6 +87,10 @@ def run(args: argparse.Namespace) -> int:
     elif args.format == "markdown":
         text = week_export.to_markdown_text(week)
     elif args.format == "ics":
+        if not week.bookings:
+            raise PlannerError(f"no jobs booked between {week.start} and {week.end}: no "
+                               "calendar written", "An iCalendar file needs at least one event; "
+                               "see the plan with --format table.")
         # The clock is read here, at the edge: DTSTAMP is when the file was made.
         text = week_export.to_ics(week, dt.datetime.now(dt.UTC).replace(microsecond=0))
     else:
