@@ -196,6 +196,9 @@ def read_table(text: str, name: str) -> CsvTable:
         ) from None
     if header is None:
         raise PlannerError(f"{name} is empty", "Export the sheet with its header row.")
+    if not rows and not problems:
+        raise PlannerError(f"{name} has a header row but no rows under it",
+                           "Export the sheet with its data; nothing was imported.")
     return CsvTable(header, tuple(rows), delimiter, blank, tuple(problems), tuple(notes))
 
 
@@ -729,7 +732,7 @@ def _open_sheet(text: str, source: str, fields: Mapping[str, FieldInfo],
     if missing:
         raise PlannerError(
             f"{source}: no column for {', '.join(missing)}",
-            "say which column holds it with --map, e.g. --map \"Fleet no=" + missing[0] + "\"; "
+            f"say which column holds it with --map \"COLUMN={missing[0]}\"; "
             "the columns are: " + ", ".join(repr(h) for h in table.header))
     for a, b in (("belt_date", "belt_odometer"), ("belt_odometer", "belt_date"),
                  ("reading_date", "reading_odometer"), ("reading_odometer", "reading_date")):

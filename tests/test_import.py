@@ -119,6 +119,11 @@ def test_rfc4180_quoting_matches_the_csv_module():
     assert note == 'Kit on order, ask "Dana" at the depot\nbefore booking'
 
 
+def test_a_header_without_rows_is_refused():
+    with pytest.raises(PlannerError, match="has a header row but no rows under it"):
+        importer.read_table("Fleet no,In service\n\n", "x.csv")
+
+
 def test_row_numbers_are_spreadsheet_rows_and_lines_follow_embedded_newlines():
     text = 'Fleet no,Notes\nBF-1,"two\nlines"\n\nBF-2,x\n'
     table = importer.read_table(text, "x")
@@ -470,6 +475,9 @@ def test_dry_run_writes_nothing_and_shows_the_file(tmp_path, capsys):
     (["import", str(DATA / "err_rows.csv"), "--dry-run"], "can be read two ways"),
     (["import", str(DATA / "comma.csv"), "--dry-run", "--map", "Nope=id"], "no column named"),
     (["import", str(DATA / "err_utf16.csv"), "--dry-run"], "UTF-16"),
+    (["import", "fleet.xlsx", "--dry-run"], "is a spreadsheet workbook, not CSV"),
+    (["import", str(EXAMPLES / "courier_fleet.toml"), "--dry-run"], "is a fleet file (TOML)"),
+    (["import", str(DATA / "comma.csv"), "-o", "no/such/folder/f.toml"], "does not exist"),
 ])
 def test_cli_errors_exit_2_without_traceback(argv, fragment, capsys):
     code, _, err = run(capsys, *argv)

@@ -69,9 +69,19 @@ def add_csv_options(p: argparse.ArgumentParser) -> None:
                        const=importer.MONTH_FIRST, help="numeric dates are mm/dd/yyyy")
 
 
+SPREADSHEET_SUFFIXES = (".xlsx", ".xlsm", ".xls", ".ods", ".numbers")
+
+
 def read_csv(path: str) -> importer.Decoded:
     """The CSV file's bytes, decoded; a missing or unreadable file is a PlannerError."""
     p = Path(path)
+    if p.suffix.lower() in SPREADSHEET_SUFFIXES:
+        raise PlannerError(f"{path} is a spreadsheet workbook, not CSV",
+                           "In the spreadsheet use 'Save as' / 'Download as' CSV (UTF-8 if "
+                           "offered), then import the .csv file.")
+    if p.suffix.lower() == ".toml":
+        raise PlannerError(f"{path} is a fleet file (TOML), not CSV",
+                           "It needs no import: use it with beltplan check or beltplan list.")
     try:
         if p.is_dir():
             raise PlannerError(f"{path} is a folder", "Give the path of a .csv file.")
@@ -98,6 +108,9 @@ def run(args: argparse.Namespace) -> int:
                                "choose another path with -o")
         if out.is_dir():
             raise PlannerError(f"{out} is a folder", "give -o the path of a .toml file")
+        folder = out.parent if str(out.parent) else Path(".")
+        if not folder.is_dir():
+            raise PlannerError(f"cannot write {out}", f"the folder {folder} does not exist")
         if out.exists() and not args.force:
             raise PlannerError(f"{out} already exists; nothing was written",
                                "choose another path with -o, or add --force to replace it "
