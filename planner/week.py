@@ -293,11 +293,12 @@ def interval_words(p: VehiclePlan, unit: str) -> str:
     if s.interval_months is not None:
         parts.append(f"{s.interval_months} months")
     text = " or ".join(parts) + (", whichever comes first" if len(parts) == 2 else "")
+    text = text or "no interval given"
     if s.interval_basis is IntervalBasis.SEVERE:
         text += " (severe-service interval)"
     elif s.interval_basis is IntervalBasis.SEVERE_UNKNOWN:
         text += " (normal interval: severe duty, but no severe-service interval known)"
-    return text or "no interval given"
+    return text
 
 
 def reason_words(p: VehiclePlan) -> str:
