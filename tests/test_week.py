@@ -9,6 +9,8 @@ the call list and moves.
 
 from __future__ import annotations
 
+import subprocess
+import sys
 from collections import Counter
 from datetime import date, timedelta
 
@@ -381,6 +383,21 @@ def test_move_redoes_totals_parts_and_calls():
     with pytest.raises(PlannerError, match="not a job in this week plan"):
         move(week, "Q", MON, 1)
     assert where(week)["C"] == (1, (MON,), (2.0,), 3.5)  # the old plan is unchanged
+
+
+# ---------------------------------------------------------------- the engine border
+
+
+@pytest.mark.parametrize("module", ["planner.week", "planner.week_export"])
+def test_week_modules_stay_pure(module):
+    # As tests/test_engine_border.py for the rest of the engine: no UI, CLI, file layer, and
+    # the calendar is written by hand (icalendar is a test-only reference).
+    forbidden = ["textual", "rich", "planner.tui", "planner.cli", "planner.fileio", "icalendar"]
+    code = (f"import sys, importlib; importlib.import_module({module!r}); "
+            f"print(','.join(m for m in {forbidden!r} if m in sys.modules))")
+    out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True,
+                         check=True).stdout.strip()
+    assert out == "", f"{module} pulls in {out}"
 
 
 # ---------------------------------------------------------------- week-level properties
