@@ -1,0 +1,128 @@
+"""The app's editing actions: readings, belt jobs, vehicles, engine profiles, undo."""
+
+from __future__ import annotations
+
+from typing import TYPE_CHECKING, Any
+
+from rich.text import Text
+
+from planner import edit
+from planner.errors import PlannerError
+from planner.plan import VehiclePlan
+from planner.tui import form_specs
+from planner.tui.look import literal
+from planner.tui.screens.dialogs import AskDialog, PickDialog
+from planner.tui.screens.form import FormScreen
+
+if TYPE_CHECKING:
+    from planner.tui.app import BeltplanApp
+
+NEW_PROFILE = "\x00new"
+
+
+class EditActions:
+    """Mixed into `BeltplanApp`."""
+
+    def _plan(self: BeltplanApp) -> VehiclePlan | None:
+        vid = self.current_vehicle_id()
+        plan = self.session.plan_of(vid) if vid is not None else None
+        if plan is None:
+            self.say("No vehicle is highlighted.", "warning")
+        return plan
+
+    def apply_edit(self: BeltplanApp, text: str | None, what: str) -> None:
+        """Make an edit's text current (it was checked by the form) and redraw."""
+        if text is None:
+            return
+        try:
+            self.session.apply(text, what)
+        except PlannerError as err:  # the form checks first; this is a last line of defence
+            self.say(err.render(), "error")
+            return
+        self.refresh_views()
+        self.say(f"{what}. Not saved yet: ctrl+s saves, u undoes.")
+
+    def _form(self: BeltplanApp, spec: Any, what: str) -> None:
+        self.push_screen(FormScreen(spec), lambda text: self.apply_edit(text, what))
+
+    def action_add_reading(self: BeltplanApp) -> None:
+        plan = self._plan()
+        if plan is not None:
+            self._form(form_specs.reading_form(self.session, plan),
+                       f"Reading added to {plan.id}")
+
+    def action_record_job(self: BeltplanApp) -> None:
+        plan = self._plan()
+        if plan is not None:
+            self._form(form_specs.job_form(self.session, plan), f"Belt job recorded on {plan.id}")
+
+    def action_add_vehicle(self: BeltplanApp) -> None:
+        self._form(form_specs.vehicle_form(self.session, None), "Vehicle added")
+
+    def action_edit_vehicle(self: BeltplanApp) -> None:
+        plan = self._plan()
+        if plan is not None:
+            self._form(form_specs.vehicle_form(self.session, plan.vehicle),
+                       f"Vehicle {plan.id} changed")
+
+    def action_delete_vehicle(self: BeltplanApp) -> None:
+        plan = self._plan()
+        if plan is None:
+            return
+        question = Text("Delete ")
+        question.append(literal(plan.id, "bold"))
+        if plan.vehicle.label:
+            question.append(" ")
+            question.append(literal(plan.vehicle.label))
+        n_r, n_j = len(plan.vehicle.readings), len(plan.vehicle.belt_jobs)
+        question.append(f" with its {n_r} readings and {n_j} belt jobs?\n"
+                        "u undoes it until you quit; the file changes only when you save.")
+
+        def done(answer: str | None) -> None:
+            if answer != "delete":
+                return
+            try:
+                text = edit.delete_vehicle(self.session.text, plan.id)
+            except PlannerError as err:
+                self.say(err.render(), "error")
+                return
+            if getattr(self.screen, "vehicle_id", None) == plan.id:
+                self.pop_screen()
+            self.apply_edit(text, f"Vehicle {plan.id} deleted")
+
+        self.push_screen(AskDialog("Delete vehicle", question,
+                                   [("keep", "Keep it", "default"),
+                                    ("delete", "Delete", "error")]), done)
+
+    def action_engine_profile(self: BeltplanApp) -> None:
+        fleet = self.session.fleet
+        if fleet is None:
+            return
+        vid = self.current_vehicle_id()
+        plan = self.session.plan_of(vid) if vid else None
+        options: list[tuple[str, Text | str]] = [(NEW_PROFILE, "+ add a new profile")]
+        for pid, profile in fleet.engines.items():
+            words = literal(pid, "bold")
+            if profile.description:
+                words.append("  ")
+                words.append(literal(profile.description))
+            options.append((pid, words))
+
+        def done(choice: str | None) -> None:
+            if choice is None:
+                return
+            pid = None if choice == NEW_PROFILE else choice
+            what = f"Engine profile {pid} changed" if pid else "Engine profile added"
+            self._form(form_specs.engine_form(self.session, pid), what)
+
+        self.push_screen(PickDialog("Engine profiles", "Choose one to edit, or add one.",
+                                    options, current=plan.vehicle.engine if plan else None),
+                         done)
+
+    def action_undo(self: BeltplanApp) -> None:
+        what = self.session.undo()
+        if what is None:
+            self.say("Nothing to undo.")
+            return
+        self.refresh_views()
+        self.say(f"Undone: {what}.")

@@ -1,0 +1,124 @@
+"""The app's file actions: save, reload, export, quit — none of them loses an edit."""
+
+from __future__ import annotations
+
+from pathlib import Path
+from typing import TYPE_CHECKING
+
+from rich.text import Text
+
+from planner.errors import PlannerError
+from planner.tui import form_specs
+from planner.tui.screens.dialogs import AskDialog
+from planner.tui.screens.form import FormScreen
+
+if TYPE_CHECKING:
+    from planner.tui.app import BeltplanApp
+
+
+class FileActions:
+    """Mixed into `BeltplanApp`."""
+
+    def _changes(self: BeltplanApp) -> str:
+        n = len(self.session.history)
+        return f"{n} unsaved change{'s' if n != 1 else ''}" if n else "unsaved changes"
+
+    def save_now(self: BeltplanApp, then_quit: bool = False) -> bool:
+        """Save; on refusal explain and offer the ways out. True when saved."""
+        session = self.session
+        try:
+            session.save()
+        except PlannerError as err:
+            if session.changed_on_disk():
+                self._refused(then_quit)
+            else:
+                self.say(err.render(), "error")
+            return False
+        self.refresh_views()
+        self.say(f"Saved {session.path} (the previous version is in "
+                 f"{session.path.name}.bak).")
+        if then_quit:
+            self.exit()
+        return True
+
+    def _refused(self: BeltplanApp, then_quit: bool) -> None:
+        session = self.session
+        question = Text(f"{session.path} changed on disk since it was read (another program "
+                        "or person saved it). Nothing was saved and nothing is lost: your "
+                        f"{self._changes()} are still here.\n\n", style="")
+        question.append("Keep a copy writes your version beside it as "
+                        f"{session.path.stem}.mine{session.path.suffix}, to compare. "
+                        "Reload reads the file on disk and drops your changes.")
+
+        def done(answer: str | None) -> None:
+            if answer == "copy":
+                try:
+                    target = session.save_copy()
+                except PlannerError as err:
+                    self.say(err.render(), "error")
+                    return
+                self.say(f"Your version is in {target}; the fleet file was not touched.")
+            elif answer == "reload":
+                self.call_later(self.reload_now)
+
+        self.say(f"Not saved: {session.path} changed on disk.", "error")
+        self.push_screen(AskDialog("File changed on disk", question,
+                                   [("keep", "Keep editing", "primary"),
+                                    ("copy", "Keep a copy", "default"),
+                                    ("reload", "Reload (drop mine)", "warning")]), done)
+
+    def action_save(self: BeltplanApp) -> None:
+        if not self.session.dirty:
+            self.say("Nothing to save: the file is as on disk.")
+            return
+        self.save_now()
+
+    async def reload_now(self: BeltplanApp) -> None:
+        ok = self.session.load()
+        await self.show_base()
+        self.say(f"Read {self.session.path} again." if ok else
+                 f"{self.session.path} still has problems.", "information" if ok else "error")
+
+    def action_reload(self: BeltplanApp) -> None:
+        if not self.session.dirty:
+            self.call_later(self.reload_now)
+            return
+
+        def done(answer: str | None) -> None:
+            if answer == "reload":
+                self.call_later(self.reload_now)
+
+        self.push_screen(AskDialog("Reload from disk", f"Reading the file again drops your "
+                                   f"{self._changes()}.",
+                                   [("keep", "Keep my changes", "primary"),
+                                    ("reload", "Reload", "warning")]), done)
+
+    def action_export(self: BeltplanApp) -> None:
+        main = self.main_screen()
+        if main is None:
+            return
+        records = list(main.table.listed)
+
+        def done(path: Path | None) -> None:
+            if path is not None:
+                n = len(records)
+                self.say(f"Exported {n} vehicle{'s' if n != 1 else ''} to {path}")
+
+        self.push_screen(FormScreen(form_specs.export_form(self.session, records)), done)
+
+    async def action_quit(self: BeltplanApp) -> None:
+        if not self.session.dirty:
+            self.exit()
+            return
+
+        def done(answer: str | None) -> None:
+            if answer == "save":
+                self.save_now(then_quit=True)
+            elif answer == "discard":
+                self.exit()
+
+        self.push_screen(AskDialog("Quit", f"You have {self._changes()} not saved to "
+                                   f"{self.session.path}.",
+                                   [("cancel", "Keep working", "primary"),
+                                    ("save", "Save and quit", "success"),
+                                    ("discard", "Quit without saving", "error")]), done)

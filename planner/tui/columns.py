@@ -1,0 +1,93 @@
+"""The fleet table's columns: which fields, how each cell looks, which fit the terminal.
+
+The columns are `export.table_columns` (the CLI's and Markdown's), so a field the engine adds
+there (the risk columns, for instance) appears here too, formatted by `export.display`. A column
+appears only when the records carry its field. When the terminal is narrow the least needed
+columns step aside; the row line under the table still shows them for the highlighted row.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Iterable, Sequence
+from dataclasses import dataclass
+from typing import Any
+
+from rich.text import Text
+
+from planner import export
+from planner.tui.look import DIM, consequence_text, literal, status_text
+
+LABEL_WIDTH = 24
+CELL_PADDING = 1
+RIGHT = {"distance_remaining", "days_remaining", "life_used", "p_fail_horizon",
+         "p_fail_before_due", "expected_loss", "est_odometer", "daily_distance"}
+# Left out first when the terminal is too narrow; the id, status, consequence and due date stay.
+DROP_ORDER = ("expected_loss", "drive", "deciding_limit", "label", "life_used",
+              "distance_remaining", "p_fail_horizon", "days_remaining")
+
+
+@dataclass(frozen=True)
+class Column:
+    field: str
+    heading: str
+
+    @property
+    def right(self) -> bool:
+        return self.field in RIGHT
+
+
+def columns_for(table_columns: Sequence[tuple[str, str]],
+                records: Sequence[dict[str, Any]]) -> list[Column]:
+    """The export's columns whose field the records carry (all of them with no records)."""
+    have = set(records[0]) if records else {f for f, _ in table_columns}
+    return [Column(f, h) for f, h in table_columns if f in have]
+
+
+def cell(record: dict[str, Any], field: str) -> Text:
+    """One cell: file text literally, status and consequence as symbol + word + colour."""
+    value = record.get(field)
+    if field == "status":
+        return status_text(value)
+    if field == "consequence":
+        return consequence_text(value)
+    if value is None:
+        return Text("–", style=DIM)
+    text = literal(export.display(value, field))
+    if field == "label":
+        text.truncate(LABEL_WIDTH, overflow="ellipsis")
+    if field == "days_remaining" and isinstance(value, int) and value < 0:
+        text.stylize("bold")
+    return text
+
+
+def row_cells(record: dict[str, Any], columns: Sequence[Column]) -> list[Text]:
+    cells = []
+    for col in columns:
+        text = cell(record, col.field)
+        if col.right:
+            text.justify = "right"
+        cells.append(text)
+    return cells
+
+
+def natural_widths(columns: Sequence[Column], rows: Iterable[dict[str, Text]]) -> dict[str, int]:
+    """Each column's width: its widest cell or its heading."""
+    widths = {c.field: len(c.heading) for c in columns}
+    for row in rows:
+        for name, text in row.items():
+            widths[name] = max(widths[name], text.cell_len)
+    return widths
+
+
+def fit(columns: Sequence[Column], widths: dict[str, int],
+        width: int) -> tuple[list[Column], list[Column]]:
+    """(shown, hidden): drop columns in DROP_ORDER until the rest fit in `width` cells."""
+    need = {c.field: widths[c.field] + 2 * CELL_PADDING for c in columns}
+    shown = list(columns)
+    hidden: list[Column] = []
+    for name in DROP_ORDER:
+        if sum(need[c.field] for c in shown) <= width:
+            break
+        hidden += [c for c in shown if c.field == name]
+        shown = [c for c in shown if c.field != name]
+    return shown, hidden

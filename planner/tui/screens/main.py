@@ -1,0 +1,115 @@
+"""The main view: summary, find box, the fleet table in triage order, the highlighted row."""
+
+from __future__ import annotations
+
+from typing import TYPE_CHECKING, Any
+
+from rich.text import Text
+from textual.app import ComposeResult
+from textual.containers import Horizontal
+from textual.screen import Screen
+from textual.widgets import DataTable, Input, Label, Static
+
+from planner.tui.actions import MAIN
+from planner.tui.look import DIM, STYLES, literal
+from planner.tui.view import View, describe
+from planner.tui.widgets.bars import KeyStrip, SummaryLine, TitleBar
+from planner.tui.widgets.fleet_table import FleetTable, next_sort
+
+if TYPE_CHECKING:
+    from planner.tui.app import BeltplanApp
+
+
+class MainScreen(Screen):
+    """The fleet at a glance."""
+
+    SCOPE = MAIN
+    CSS_PATH = STYLES / "main.tcss"
+    AUTO_FOCUS = "#fleet"
+
+    def compose(self) -> ComposeResult:
+        yield TitleBar()
+        yield SummaryLine(id="summary", markup=False)
+        with Horizontal(id="findbar"):
+            yield Label("/ find", id="find-label")
+            yield Input(placeholder="id or label", id="find", compact=True)
+            yield Static(id="viewinfo", markup=False)
+        yield FleetTable(id="fleet")
+        yield Static(id="rowinfo", markup=False)
+        yield KeyStrip(MAIN)
+
+    @property
+    def beltapp(self) -> BeltplanApp:
+        return self.app  # type: ignore[return-value]
+
+    @property
+    def table(self) -> FleetTable:
+        return self.query_one(FleetTable)
+
+    def on_mount(self) -> None:
+        self.refresh_from_session()
+
+    # -- updates from the app -------------------------------------------------------------
+    def refresh_from_session(self) -> None:
+        """New text or planning date: new records, same view."""
+        session = self.beltapp.session
+        if not session.ok:
+            return
+        self.beltapp.show_title(self.query_one(TitleBar))
+        self.table.set_records(session.records(), session.columns())
+        self._after_relist()
+
+    def set_view(self, view: View) -> None:
+        self.table.set_view(view)
+        self._after_relist()
+
+    def _after_relist(self) -> None:
+        table = self.table
+        session = self.beltapp.session
+        self.query_one(SummaryLine).show(session.as_of, table.records, len(table.listed))
+        info = Text(describe(table.view, table.heading_of()), style=DIM)
+        if table.hidden:
+            n = len(table.hidden)
+            info.append(f" · {n} more column{'s' if n != 1 else ''} when wider", style=DIM)
+        self.query_one("#viewinfo", Static).update(info)
+        self._show_row()
+
+    def _show_row(self) -> None:
+        rec = self.table.current_record()
+        box = self.query_one("#rowinfo", Static)
+        if rec is None:
+            box.update(Text("no vehicle matches: press c to clear the find box and filters"
+                            if self.table.records else "no vehicles yet: press a to add one",
+                            style=DIM))
+            return
+        text = literal(rec["id"], "bold")
+        if rec.get("label"):
+            text.append(" ")
+            text.append(literal(rec["label"]))
+        notes = rec.get("notes") or []
+        if notes:
+            text.append(" │ ", style=DIM)
+            text.append(literal(notes[0]))
+        box.update(text)
+
+    # -- events ---------------------------------------------------------------------------
+    def on_data_table_row_highlighted(self, event: DataTable.RowHighlighted) -> None:
+        self._show_row()
+
+    def on_data_table_row_selected(self, event: DataTable.RowSelected) -> None:
+        event.stop()
+        self.beltapp.open_detail(str(event.row_key.value))
+
+    def on_fleet_table_sort_asked(self, event: FleetTable.SortAsked) -> None:
+        self.set_view(next_sort(self.table.view, event.field))
+
+    def on_input_changed(self, event: Input.Changed) -> None:
+        if event.input.id == "find":
+            self.set_view(self.table.view.with_(query=event.value))
+
+    def on_input_submitted(self, event: Input.Submitted) -> None:
+        if event.input.id == "find":
+            self.table.focus()
+
+    def on_resize(self, event: Any) -> None:
+        self.call_after_refresh(self._after_relist)

@@ -1,0 +1,207 @@
+"""What the terminal UI is working on: one fleet file, its edited text, the planning date.
+
+No Textual here: the session is the UI's model and is tested on its own. It holds the text the
+user is editing (with an undo stack of earlier texts), parses every candidate text with the
+loader's own rules, saves through `fileio.save_fleet_text` and asks the engine for the plan.
+It never decides a planning rule itself.
+"""
+
+from __future__ import annotations
+
+import datetime as dt
+from collections import Counter
+from collections.abc import Sequence
+from dataclasses import dataclass
+from pathlib import Path
+from typing import Any
+
+from planner import export
+from planner.errors import PlannerError
+from planner.fileio import (
+    LoadedFleet,
+    digest_of,
+    load_fleet,
+    parse_fleet_text,
+    save_fleet_text,
+    write_atomic,
+)
+from planner.fleet import Fleet
+from planner.plan import Status, VehiclePlan
+from planner.risk import FleetAssessment, assess_fleet_plan
+
+EXPORT_FORMATS: dict[str, str] = {"csv": "csv", "json": "json", "markdown": "md"}
+
+
+@dataclass(frozen=True)
+class Change:
+    """One step back: the text (and its fleet) before an edit, and what the edit was."""
+
+    text: str
+    fleet: Fleet
+    what: str
+
+
+class Session:
+    """The fleet file being planned and edited in the UI."""
+
+    def __init__(self, path: str | Path, as_of: dt.date) -> None:
+        self.path = Path(path)
+        self.start_as_of = as_of
+        self.as_of = as_of
+        self.loaded: LoadedFleet | None = None
+        self.error: PlannerError | None = None
+        self.text = ""
+        self.fleet: Fleet | None = None
+        self.history: list[Change] = []
+        self._cache: tuple[Fleet, dt.date, FleetAssessment, list[dict[str, Any]]] | None = None
+        self._checked: tuple[str, Fleet] | None = None  # the last text `check` accepted
+
+    # -- reading ------------------------------------------------------------------------------
+    def load(self) -> bool:
+        """(Re)read the file from disk, dropping edits; False (and `error`) when it is bad."""
+        self.history.clear()
+        self._cache = None
+        try:
+            self.loaded = load_fleet(self.path)
+        except PlannerError as err:
+            self.loaded, self.fleet, self.text, self.error = None, None, "", err
+            return False
+        self.error = None
+        self.text = self.loaded.text
+        self.fleet = self.loaded.fleet
+        return True
+
+    @property
+    def ok(self) -> bool:
+        return self.fleet is not None
+
+    @property
+    def dirty(self) -> bool:
+        """True while the text differs from what is on disk (as last read or saved)."""
+        return self.loaded is not None and self.text != self.loaded.text
+
+    @property
+    def name(self) -> str:
+        if self.fleet is not None and self.fleet.fleet.name:
+            return self.fleet.fleet.name
+        return self.path.name
+
+    # -- editing ------------------------------------------------------------------------------
+    def check(self, text: str) -> Fleet:
+        """Parse and validate candidate text exactly as the loader does (PlannerError if not)."""
+        if self._checked is not None and self._checked[0] == text:
+            return self._checked[1]
+        fleet = parse_fleet_text(text, str(self.path))
+        self._checked = (text, fleet)
+        return fleet
+
+    def apply(self, text: str, what: str) -> Fleet:
+        """Make `text` the current text if it is valid; the previous one goes on the undo stack."""
+        fleet = self.check(text)
+        assert self.fleet is not None
+        self.history.append(Change(self.text, self.fleet, what))
+        self.text, self.fleet = text, fleet
+        return fleet
+
+    def undo(self) -> str | None:
+        """Go back one edit; returns what was undone, or None when there is nothing to undo."""
+        if not self.history:
+            return None
+        change = self.history.pop()
+        self.text, self.fleet = change.text, change.fleet
+        return change.what
+
+    # -- saving -------------------------------------------------------------------------------
+    def changed_on_disk(self) -> bool:
+        """True when the file on disk is no longer the one read (or last saved)."""
+        if self.loaded is None:
+            return False
+        try:
+            return digest_of(self.path.read_bytes()) != self.loaded.digest
+        except OSError:
+            return True
+
+    def save(self) -> None:
+        """Checked, backed-up, atomic save; raises PlannerError (e.g. changed on disk)."""
+        if self.loaded is None:
+            raise PlannerError("nothing to save", "The file did not load.")
+        self.loaded = save_fleet_text(self.loaded, self.text)
+
+    def save_copy(self) -> Path:
+        """Write the current text beside the file, for when the file itself cannot be saved."""
+        target = self.path.with_name(self.path.stem + ".mine" + self.path.suffix)
+        write_atomic(target, self.text.encode("utf-8"))
+        return target
+
+    # -- planning -----------------------------------------------------------------------------
+    def assessment(self) -> FleetAssessment:
+        """Plans (triage order) and risks on the planning date, computed once per text/date."""
+        return self._computed()[0]
+
+    def records(self) -> list[dict[str, Any]]:
+        """One export record per vehicle, in triage order (the fields the CLI writes)."""
+        return self._computed()[1]
+
+    def _computed(self) -> tuple[FleetAssessment, list[dict[str, Any]]]:
+        assert self.fleet is not None
+        cache = self._cache
+        if cache is None or cache[0] is not self.fleet or cache[1] != self.as_of:
+            assessment = assess_fleet_plan(self.fleet, self.as_of)
+            cache = (self.fleet, self.as_of, assessment, export.assessment_records(assessment))
+            self._cache = cache
+        return cache[2], cache[3]
+
+    def plan_of(self, vehicle_id: str) -> VehiclePlan | None:
+        for plan in self.assessment().plans:
+            if plan.id == vehicle_id:
+                return plan
+        return None
+
+    def columns(self) -> list[tuple[str, str]]:
+        assert self.fleet is not None
+        return export.table_columns(self.fleet.unit, self.assessment().model.horizon_days)
+
+    # -- exporting ----------------------------------------------------------------------------
+    def default_export_path(self, fmt: str) -> Path:
+        stem = f"{self.path.stem}-plan-{self.as_of.isoformat()}"
+        return self.path.with_name(f"{stem}.{EXPORT_FORMATS[fmt]}")
+
+    def export_text(self, records: Sequence[dict[str, Any]], fmt: str) -> str:
+        """The same writers as `beltplan list --format …`."""
+        assert self.fleet is not None
+        unit = self.fleet.unit
+        model = self.assessment().model
+        if fmt == "csv":
+            return export.to_csv(records, export.FIELDS)
+        if fmt == "json":
+            return export.to_json(records, self.as_of, unit,
+                                  {"risk_assumptions": model.as_dict()})
+        if fmt == "markdown":
+            title = f"Cam-drive plan: {self.name} on {self.as_of}"
+            return export.to_markdown(records, self.columns(), title,
+                                      preface=[summary_text(records)],
+                                      footer=[f"_{model.describe()}_", ""])
+        raise PlannerError(f"unknown export format {fmt!r}",
+                           "choose from: " + ", ".join(EXPORT_FORMATS))
+
+    def export(self, records: Sequence[dict[str, Any]], fmt: str, target: str | Path) -> Path:
+        """Write `records` as `fmt` to `target` atomically; never over the fleet file."""
+        path = Path(target).expanduser()
+        if not path.is_absolute():
+            path = self.path.parent / path
+        if path.resolve() == self.path.resolve():
+            raise PlannerError(f"refusing to write over the fleet file {path}",
+                               "Choose another file name for the export.")
+        write_atomic(path, self.export_text(records, fmt).encode("utf-8"))
+        return path
+
+
+def status_counts(records: Sequence[dict[str, Any]]) -> list[tuple[str, int]]:
+    """(status, count) in the engine's status order, statuses with no vehicle left out."""
+    counts = Counter(r["status"] for r in records)
+    return [(s.value, counts[s.value]) for s in Status if counts[s.value]]
+
+
+def summary_text(records: Sequence[dict[str, Any]]) -> str:
+    parts = [f"{n} {s}" for s, n in status_counts(records)]
+    return f"{len(records)} vehicles: " + (", ".join(parts) if parts else "none")

@@ -1,0 +1,211 @@
+"""The pieces of the detail view, as rich renderables built from the engine's results.
+
+Every number and sentence here comes from the plan (`VehiclePlan`), its export record or the
+fleet file; these functions only lay them out. File text is always `Text`, never markup.
+"""
+
+from __future__ import annotations
+
+import datetime as dt
+from typing import Any
+
+from rich import box
+from rich.console import Group, RenderableType
+from rich.style import Style
+from rich.table import Table
+from rich.text import Text
+
+from planner import export
+from planner.fleet import Fleet
+from planner.plan import IntervalBasis, Limit, Status, VehiclePlan, odometer_points
+from planner.tui.look import (
+    BOLD,
+    DIM,
+    STATUS_STYLE,
+    WHAT_IT_MEANS,
+    consequence_text,
+    literal,
+    status_text,
+)
+from planner.tui.widgets.charts import life_bar, odometer_plot
+
+
+def _rows(pairs: list[tuple[str, Text | str]]) -> Table:
+    grid = Table.grid(padding=(0, 1))
+    grid.add_column(style=DIM, no_wrap=True)
+    grid.add_column(ratio=1)
+    for name, value in pairs:
+        grid.add_row(name, value if isinstance(value, Text) else literal(value))
+    return grid
+
+
+def _km(value: float | None, unit: str) -> str:
+    return "–" if value is None else f"{value:,.0f} {unit}"
+
+
+def heading(plan: VehiclePlan) -> Text:
+    """`KL-01  Van 1   ✗ overdue · ◆ engine-damage`, and what those two words mean."""
+    text = literal(plan.id, "bold")
+    if plan.vehicle.label:
+        text.append("  ")
+        text.append(literal(plan.vehicle.label, "bold"))
+    text.append("   ")
+    text.append_text(status_text(plan.status.value))
+    text.append(" · ", style=DIM)
+    text.append_text(consequence_text(plan.consequence.value))
+    text.append(f"\n{WHAT_IT_MEANS[plan.status.value]}; "
+                f"{WHAT_IT_MEANS[plan.consequence.value]}", style=DIM)
+    return text
+
+
+def what_to_do(plan: VehiclePlan) -> Text | None:
+    """The advice for a vehicle that needs action, always with the cautions."""
+    if plan.status is Status.OVERDUE:
+        lines = ["Book the cam-drive job now: past its interval, the belt can stop the engine "
+                 "without warning. Keep the vehicle's use to a minimum."]
+    elif plan.status is Status.NO_RECORD:
+        lines = ["No record of the belt now running: common practice is to replace it on "
+                 "acquisition rather than trust the odometer."]
+    elif plan.status is Status.DUE_SOON and plan.due_date is not None:
+        lines = [f"Book the job before {plan.due_date} ({plan.days_remaining} days)."]
+    else:
+        return None
+    text = literal(lines[0] + "\n", Style(bold=True) + STATUS_STYLE.get(plan.status.value,
+                                                                         Style()))
+    text.append("At speed a failure also takes engine-driven power steering and brake "
+                "assistance. ")
+    text.append(export.CAUTION, style="italic dim")
+    return text
+
+
+def engine(plan: VehiclePlan, fleet: Fleet) -> Table:
+    v, spec, unit = plan.vehicle, plan.spec, fleet.unit
+    profile = fleet.engines.get(v.engine) if v.engine else None
+    name = literal(v.engine or "none (own fields)", "bold")
+    if profile is not None and profile.description:
+        name.append("  ")
+        name.append(literal(profile.description))
+    interference = spec.interference.value + ("" if spec.interference_given else
+                                              " (not recorded)")
+    pairs: list[tuple[str, Text | str]] = [
+        ("profile", name),
+        ("drive", f"{spec.drive.value}, fuel {spec.fuel.value if spec.fuel else '–'}"),
+        ("interference", interference),
+        ("duty", v.duty.value),
+    ]
+    if spec.drive.has_interval:
+        why = {IntervalBasis.NORMAL: "normal duty: the maker's normal interval",
+               IntervalBasis.SEVERE: "severe duty: the severe-service interval",
+               IntervalBasis.SEVERE_UNKNOWN: "severe duty, but no severe-service interval is "
+               "known: the normal one is used (check the maker's schedule)"}[spec.interval_basis]
+        pairs.append(("interval", f"{_km(spec.interval_distance, unit)} or "
+                      f"{spec.interval_months} months, whichever comes first"))
+        pairs.append(("why", why))
+    else:
+        pairs.append(("interval", "none: replaced on condition"))
+    job = []
+    if spec.parts:
+        job.append(", ".join(spec.parts))
+    if spec.labour_hours:
+        job.append(f"{spec.labour_hours:g} h labour")
+    if spec.parts_cost is not None:
+        job.append(f"parts {spec.parts_cost:,.0f} {fleet.fleet.currency}".rstrip())
+    if job:
+        pairs.append(("job", "; ".join(job)))
+    if spec.failure_cost is not None:
+        pairs.append(("if it fails", f"about {spec.failure_cost:,.0f} "
+                      f"{fleet.fleet.currency}".rstrip()))
+    return _rows(pairs)
+
+
+def install_and_usage(plan: VehiclePlan, unit: str) -> Table:
+    pairs: list[tuple[str, Text | str]] = []
+    if plan.install is not None:
+        pairs.append(("belt fitted", f"{plan.install.date} at "
+                      f"{_km(plan.install.odometer, unit)}"))
+        pairs.append(("known from", plan.install.source))
+    else:
+        pairs.append(("belt fitted", Text("no record (bought used without a belt receipt)",
+                                          style=STATUS_STYLE["no-record"])))
+    use = plan.usage
+    rate = "–" if use.daily_distance is None else f"{use.daily_distance:,.1f} {unit}/day"
+    pairs.append(("usage", f"{rate} ({use.basis})"))
+    if use.last_date is not None:
+        pairs.append(("last value", f"{_km(use.last_odometer, unit)} on {use.last_date}"))
+    pairs.append(("est. odometer", _km(use.est_odometer, unit)))
+    return _rows(pairs)
+
+
+def limits(plan: VehiclePlan, unit: str, as_of: dt.date) -> RenderableType:
+    if not plan.spec.drive.has_interval:
+        return Text("no distance or age limit: this drive is replaced on condition", style=DIM)
+    if plan.due_date is None:
+        return Text("no limits can be dated without a record of the belt now running",
+                    style=DIM)
+    table = Table(box=box.SIMPLE_HEAD, pad_edge=False, show_edge=False, expand=False)
+    for name in ("limit", "reached at", "date", "left", ""):
+        table.add_column(name, style="" if name else BOLD, no_wrap=True)
+    dist_date = plan.distance_due_date.isoformat() if plan.distance_due_date else "–"
+    left = _km(plan.distance_remaining, unit)
+    decides = {limit: "◀ decides" if plan.deciding_limit is limit else "" for limit in Limit}
+    table.add_row("distance", _km(plan.due_odometer, unit), dist_date + " (projected)"
+                  if plan.distance_due_date else dist_date, left, decides[Limit.DISTANCE])
+    time_due = plan.time_due_date
+    days = f"{(time_due - as_of).days:,} days" if time_due else "–"
+    table.add_row("age", f"{plan.spec.interval_months} months",
+                  time_due.isoformat() if time_due else "–", days, decides[Limit.TIME])
+    return table
+
+
+def life(plan: VehiclePlan) -> Text:
+    return life_bar(plan.life_used, style=STATUS_STYLE.get(plan.status.value, ""))
+
+
+def odometer(plan: VehiclePlan, unit: str, as_of: dt.date, width: int) -> Text:
+    return odometer_plot(odometer_points(plan.vehicle, as_of), as_of, plan.usage.est_odometer,
+                         plan.due_odometer, unit, total_width=max(30, width))
+
+
+def risk(record: dict[str, Any], describe: str) -> RenderableType:
+    if record.get("p_fail_horizon") is None and record.get("expected_loss") is None:
+        return Text("the risk model does not apply to this drive", style=DIM)
+    pairs: list[tuple[str, Text | str]] = [
+        ("in the horizon", export.display(record.get("p_fail_horizon"), "p_fail_horizon")),
+        ("before it is due", export.display(record.get("p_fail_before_due"),
+                                            "p_fail_before_due")),
+        ("expected loss", export.display(record.get("expected_loss"), "expected_loss")),
+    ]
+    return Group(_rows(pairs), Text(describe, style="italic dim"))
+
+
+def notes(record: dict[str, Any], plan: VehiclePlan) -> Text:
+    text = Text()
+    for note in record.get("notes") or plan.notes:
+        text.append("• ")
+        text.append(literal(note))
+        text.append("\n")
+    if plan.vehicle.notes:
+        text.append("• file note: ", style=DIM)
+        text.append(literal(plan.vehicle.notes))
+        text.append("\n")
+    text.rstrip()
+    return text or Text("no notes", style=DIM)
+
+
+def jobs(plan: VehiclePlan, unit: str) -> RenderableType:
+    history = sorted(plan.vehicle.belt_jobs, key=lambda j: (j.date, j.odometer), reverse=True)
+    if not history:
+        return Text("no belt jobs recorded", style=DIM)
+    table = Table(box=box.SIMPLE_HEAD, pad_edge=False, show_edge=False, expand=True)
+    table.add_column("date", no_wrap=True)
+    table.add_column(f"odometer ({unit})", justify="right", no_wrap=True)
+    table.add_column("reason", no_wrap=True)
+    table.add_column("work and notes", ratio=1)
+    for job in history:
+        words = literal(job.work)
+        if job.notes:
+            words.append(" — " if job.work else "")
+            words.append(literal(job.notes, "italic"))
+        reason = literal(job.reason.value, "bold" if job.reason.value == "failed" else "")
+        table.add_row(literal(job.date), literal(f"{job.odometer:,.0f}"), reason, words)
+    return table
