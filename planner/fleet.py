@@ -252,7 +252,7 @@ class Workshop(_Model):
 
     bays: Annotated[int, Field(ge=1, le=100)] = Field(default=1, description="Number of bays.")
     hours_per_day: Annotated[float, Field(gt=0, le=24)] = Field(
-        default=8.0, description="Working hours per bay per day."
+        default=8.0, description="Working hours per bay per day (jobs start from 08:00)."
     )
     weekdays: list[Weekday] = Field(
         default_factory=lambda: ["mon", "tue", "wed", "thu", "fri"],
@@ -260,7 +260,8 @@ class Workshop(_Model):
     )
     closed: list[dt.date] = Field(default_factory=list, description="Closed days (holidays).")
     parts_lead_days: Annotated[int, Field(ge=0, le=365)] = Field(
-        default=2, description="Days from ordering parts to having them."
+        default=2, description="Calendar days from ordering parts to having them (two working "
+        "days from a Friday order is 4)."
     )
     kits_in_stock: bool = Field(
         default=False, description="Common kits are on the shelf: no lead time."

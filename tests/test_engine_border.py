@@ -9,7 +9,8 @@ import pytest
 
 ENGINE = ["planner.fleet", "planner.validate", "planner.plan", "planner.risk",
           "planner.reliability", "planner.schedule", "planner.export", "planner.locate",
-          "planner.errors", "planner.units"]
+          "planner.errors", "planner.units", "planner.week", "planner.week_export",
+          "planner.importer", "planner.edit"]
 FORBIDDEN = ["textual", "planner.tui", "planner.cli", "planner.fileio", "scipy", "numpy"]
 
 
