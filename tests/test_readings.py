@@ -10,7 +10,7 @@ from pathlib import Path
 
 import pytest
 
-from planner import importer
+from planner import edit, importer
 from planner.cli import main
 from planner.errors import PlannerError
 from planner.fileio import load_fleet
@@ -220,3 +220,38 @@ def test_help_explains_with_an_example(capsys):
         main(["readings", "--help"])
     text = capsys.readouterr().out
     assert "--from fleet_examples/weekly_readings.csv" in text and "reading_odometer" in text
+
+
+# -- the batch text edit ----------------------------------------------------------------------
+
+@pytest.mark.parametrize("fleet_path, export, order", [
+    (FLEET, WEEK, importer.DAY_FIRST),
+    (COURIER, EXAMPLES / "weekly_readings.csv", None),
+])
+def test_batch_edit_writes_what_repeated_edit_add_reading_writes(fleet_path, export, order):
+    # Reference: planner.edit.add_reading, the style-preserving edit the UI uses, one call per
+    # reading. The batch must give the same text (new array, one-line and multiline arrays).
+    loaded, result = readings_import(export, fleet_path, date_order=order)
+    assert result.added
+    expected = loaded.text
+    for r in result.added:
+        expected = edit.add_reading(expected, r.vehicle, r.date, r.odometer)
+    assert result.text == expected
+
+
+def test_batch_edit_parses_the_document_once(monkeypatch):
+    calls = []
+    real = edit._parse
+    monkeypatch.setattr(edit, "_parse", lambda text: calls.append(1) or real(text))
+    text = FLEET.read_text(encoding="utf-8")
+    importer.add_readings(text, [("BF-01", dt.date(2026, 12, 2), 225100),
+                                 ("BF-02", dt.date(2026, 12, 2), 169000),
+                                 ("BF-04", dt.date(2026, 12, 2), 171500)])
+    assert len(calls) == 1
+
+
+def test_batch_edit_keeps_windows_line_ends():
+    text = FLEET.read_text(encoding="utf-8").replace("\n", "\r\n")
+    out = importer.add_readings(text, [("BF-01", dt.date(2026, 12, 2), 225100)])
+    assert "\n" not in out.replace("\r\n", "")
+    assert "{ date = 2026-12-02, odometer = 225100 }" in out
