@@ -1002,6 +1002,14 @@ def _check_vehicle(sheet: _Sheet, row: Row, values: dict[str, Any]) -> list[RowP
                 out.append(RowProblem(row.number, row.line, f"{x} is given but {y} is empty",
                                       use.header if use else None, "",
                                       "fill both cells, or neither"))
+    if "belt_date" not in values:
+        for x in ("belt_reason", "belt_work", "belt_notes"):
+            if x in values:
+                use = sheet.column(x)
+                out.append(RowProblem(row.number, row.line, f"{x} is given but there is no "
+                                      "belt job (belt_date and belt_odometer are empty)",
+                                      use.header if use else None, values[x],
+                                      "fill in the belt job, or clear this cell"))
     engine = values.get("engine")
     if engine is not None and len(engine) > 64:
         out.append(RowProblem(row.number, row.line, "engine profile id longer than 64 characters",

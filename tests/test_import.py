@@ -338,6 +338,17 @@ def test_each_row_problem_names_row_column_and_value_and_the_row_is_left_out():
     assert "# 1 vehicle from 16 rows; 15 left out" in result.text
 
 
+def test_belt_job_details_without_a_belt_job_are_not_dropped_silently():
+    text = "Fleet no,Drive,Interval (km),Interval (months),In service,Belt date,Belt odometer," \
+        "Reason\nBF-1,belt,120000,72,2020-02-03,,,failed\n" \
+        "BF-2,belt,120000,72,2020-02-03,2023-01-16,96410,failed\n"
+    result = importer.import_fleet(text, source="x.csv", when=WHEN)
+    (problem,) = result.problems
+    assert (problem.row, problem.column, problem.value) == (2, "Reason", "failed")
+    assert "belt_reason is given but there is no belt job" in problem.message
+    assert result.fleet.vehicles[0].belt_jobs[0].reason.value == "failed"
+
+
 def test_words_read_as_values_are_reported():
     text = "Fleet no,Drive,Interference?,Interval (km),Interval (years),In service\n" \
         "BF-1,Timing belt,Yes,120000,6,2020-02-03\nBF-2,belt in oil,no,150000,10,2020-02-03\n"
