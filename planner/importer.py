@@ -250,10 +250,14 @@ FLEET_FIELDS: dict[str, FieldInfo] = {
                       "normal or severe (yes/no accepted)"),
     "in_service": FieldInfo("date", ("in service date", "date in service", "in service from",
                                      "on fleet", "date on fleet", "service start",
-                                     "first registered", "first registration",
-                                     "registration date", "acquired", "date acquired",
+                                     "acquired", "date acquired",
                                      "purchase date", "purchased", "start date"),
                             "day the vehicle entered service (or the fleet)"),
+    "first_registered": FieldInfo("date", ("first registration", "date first registered",
+                                           "date of first registration", "registration date",
+                                           "registered"),
+                                  "day first registered, if bought used (the risk model "
+                                  "assumes an unknown belt this old)"),
     "in_service_odometer": FieldInfo("distance", ("odometer in service", "start odometer",
                                                   "starting odometer", "odometer at start",
                                                   "odometer at purchase", "opening odometer",
@@ -882,7 +886,8 @@ def _column_report(sheet: _Sheet, decoded: Decoded | None) -> list[str]:
 
 PROFILE_KEY = ("drive", "interference", "interval_distance", "interval_months",
                "severe_interval_distance", "severe_interval_months")
-_VEHICLE_ORDER = ("id", "label", "engine", "duty", "in_service", "in_service_odometer",
+_VEHICLE_ORDER = ("id", "label", "engine", "duty", "in_service", "first_registered",
+                  "in_service_odometer",
                   "belt_history", *SPEC_FIELDS, "notes")
 
 

@@ -143,6 +143,23 @@ def test_header_words_map_columns_and_the_mapping_is_printed():
     assert "'Belt date'         -> belt_date" in lines
 
 
+def test_every_vehicle_field_can_come_from_a_column():
+    # The issue: every vehicle field of the fleet file is mappable (lists say where to go).
+    from planner.fleet import Contact, Vehicle
+    for name in Vehicle.model_fields:
+        assert name in importer.FLEET_FIELDS or name in importer.NOT_MAPPABLE, name
+    for name in Contact.model_fields:
+        assert f"contact_{name}" in importer.FLEET_FIELDS, name
+
+
+def test_first_registered_is_read_from_its_own_column():
+    text = "Fleet no,Drive,Interval (km),Interval (months),In service,First registered," \
+        "Belt history\nBF-1,belt,120000,72,2024-03-18,2019-06-01,unknown\n"
+    (vehicle,) = importer.import_fleet(text, source="x.csv", when=WHEN).fleet.vehicles
+    assert (vehicle.in_service, vehicle.first_registered) == (
+        dt.date(2024, 3, 18), dt.date(2019, 6, 1))
+
+
 def test_header_key_takes_the_distance_unit_out():
     assert importer.header_key("Odometer (km)") == ("odometer", "km")
     assert importer.header_key("Belt changed at (miles)") == ("belt changed at", "mi")
