@@ -12,13 +12,22 @@ from dataclasses import dataclass, field, replace
 Path = tuple[str | int, ...]
 
 
+_BARE = frozenset("ABCDEFGHIJKLMNOPQRSTUVWXYZabcdefghijklmnopqrstuvwxyz0123456789_-")
+
+
 def format_path(path: Path) -> str:
-    """`('vehicles', 2, 'readings', 0, 'odometer')` -> `vehicles[2].readings[0].odometer`."""
+    """`('vehicles', 2, 'readings', 0, 'odometer')` -> `vehicles[2].readings[0].odometer`.
+
+    A key that is not a TOML bare key (empty, spaces, dots…) is quoted the way the file
+    would have to write it: `engines."my van"`.
+    """
     out = ""
     for part in path:
         if isinstance(part, int):
             out += f"[{part}]"
         else:
+            if not part or not _BARE.issuperset(part):
+                part = '"' + part.replace("\\", "\\\\").replace('"', '\\"') + '"'
             out += f".{part}" if out else part
     return out
 

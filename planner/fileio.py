@@ -9,13 +9,24 @@ on disk since it was read.
 
 from __future__ import annotations
 
+import contextlib
+import datetime as dt
+import errno
+import glob
 import hashlib
 import os
 import re
 import tempfile
+import time
 import tomllib
+from collections.abc import Iterator
 from dataclasses import dataclass
 from pathlib import Path
+
+try:
+    import fcntl
+except ImportError:  # Windows: saves still check and replace atomically, without the lock
+    fcntl = None  # type: ignore[assignment]
 
 from planner.errors import PlannerError, Problem
 from planner.fleet import Fleet
@@ -25,6 +36,9 @@ from planner.validate import build_fleet
 BOM = "\ufeff"
 MAX_FILE_BYTES = 64 * 1024 * 1024
 BACKUP_SUFFIX = ".bak"
+TEMP_SUFFIX = ".tmp"
+STALE_TEMP_SECONDS = 600  # a leftover temporary file this old belongs to no running save
+LOCK_WAIT_SECONDS = 5.0
 
 
 @dataclass(frozen=True)
@@ -52,29 +66,57 @@ def read_text(path: Path) -> tuple[str, bytes, bool]:
         size = path.stat().st_size
         if size > MAX_FILE_BYTES:
             raise PlannerError(f"{name} is too large ({size:,} bytes)",
-                               f"A fleet file is at most {MAX_FILE_BYTES // 2**20} MiB.")
+                               f"A fleet file is at most {MAX_FILE_BYTES // 2**20} MiB: check "
+                               "that this is the fleet file, or split the fleet.")
         raw = path.read_bytes()
     except FileNotFoundError:
         raise PlannerError(f"{name}: no such file",
                            "Check the path, or create a fleet file (see the README).") from None
+    except NotADirectoryError:
+        raise PlannerError(f"{name}: no such file",
+                           "A part of the path is a file, not a folder: check the path.") from None
     except PermissionError:
-        raise PlannerError(f"{name}: permission denied", "Check the file's permissions.") from None
+        raise PlannerError(f"{name}: permission denied",
+                           "Check the file's permissions, or ask for read access.") from None
     except OSError as exc:
-        raise PlannerError(f"{name}: cannot be read", exc.strerror or str(exc)) from None
+        raise PlannerError(f"{name}: cannot be read",
+                           f"{exc.strerror or exc}; check the disk or network share, then try "
+                           "again.") from None
+    if raw.startswith(_UTF16_BOMS) or _looks_utf16(raw):
+        raise PlannerError(f"{name} is saved as UTF-16, not UTF-8",
+                           "Save the file as UTF-8 text (in most editors: Save as, then "
+                           "Encoding: UTF-8).")
     if b"\x00" in raw:
-        raise PlannerError(f"{name} is not a text file",
-                           "It contains NUL bytes; a fleet file is UTF-8 text (TOML).")
+        line = raw[: raw.index(b"\x00")].count(b"\n") + 1
+        raise PlannerError(
+            f"{name} is not a text file",
+            "A fleet file is UTF-8 text (TOML): check that this is the right file.",
+            [Problem("a NUL byte: binary data, not text", file=name, line=line)],
+        )
     try:
         text = raw.decode("utf-8")
     except UnicodeDecodeError as exc:
         line = raw[: exc.start].count(b"\n") + 1
+        column = exc.start - (raw.rfind(b"\n", 0, exc.start) + 1) + 1
         raise PlannerError(
             f"{name} is not valid UTF-8",
-            "Save the file as UTF-8 text.",
-            [Problem(f"byte 0x{raw[exc.start]:02x} cannot be decoded", file=name, line=line)],
+            "Save the file as UTF-8 text (in most editors: Save as, then Encoding: UTF-8).",
+            [Problem(f"byte 0x{raw[exc.start]:02x} cannot be decoded as UTF-8 (the file looks "
+                     "like another encoding, e.g. Latin-1 or Windows-1252)",
+                     file=name, line=line, column=column)],
         ) from None
     bom = text.startswith(BOM)
     return (text[1:] if bom else text), raw, bom
+
+
+_UTF16_BOMS = (b"\xff\xfe", b"\xfe\xff")
+
+
+def _looks_utf16(raw: bytes) -> bool:
+    """UTF-16 without a BOM: ASCII text with a NUL beside every character."""
+    head = raw[:200]
+    return len(head) >= 8 and (head[1::2].count(0) > len(head) * 0.4
+                               or head[0::2].count(0) > len(head) * 0.4)
 
 
 _TOML_POS = re.compile(r"^(?P<msg>.*?)\s*\(at line (?P<line>\d+), column (?P<col>\d+)\)$")
@@ -83,22 +125,31 @@ _TOML_POS = re.compile(r"^(?P<msg>.*?)\s*\(at line (?P<line>\d+), column (?P<col
 def parse_fleet_text(text: str, name: str) -> Fleet:
     """Parse and validate fleet-file text; problems carry `name` and their line."""
     try:
+        return _parse(text, name)
+    except RecursionError:  # tomllib, pydantic and the locator all recurse per nesting level
+        raise PlannerError(f"{name} is nested too deeply to read",
+                           "A fleet file nests tables at most three deep: look for a run of "
+                           "'[' or '{' that never closes, and flatten it.") from None
+
+
+def _parse(text: str, name: str) -> Fleet:
+    try:
         data = tomllib.loads(text)
     except tomllib.TOMLDecodeError as exc:
-        msg, line, col = str(exc), None, None
-        hit = _TOML_POS.match(msg)
-        if hit:
-            msg, line, col = hit["msg"], int(hit["line"]), int(hit["col"])
+        msg, line, col = _syntax_error(exc, text)
         raise PlannerError(
             f"{name} is not valid TOML",
             "Fix the syntax at the place shown; nothing was planned.",
             [Problem(f"TOML syntax error: {msg}", file=name, line=line, column=col,
-                     hint="check quotes, brackets and '=' on that line (dates are written "
-                     "2026-11-20, text in double quotes)")],
+                     hint=_syntax_hint(text, line, msg))],
         ) from None
-    except RecursionError:
-        raise PlannerError(f"{name} is nested too deeply to read",
-                           "Flatten the nested tables or arrays.") from None
+    if not data:
+        raise PlannerError(
+            f"{name} holds no fleet data",
+            "It is empty (or only comments). If it should hold your fleet, restore it from "
+            f"{name}{BACKUP_SUFFIX}, the copy kept at the last save; a new fleet file starts "
+            "with schema = 1 (see the README).",
+        )
     try:
         return build_fleet(data)
     except PlannerError as err:
@@ -111,6 +162,89 @@ def parse_fleet_text(text: str, name: str) -> Fleet:
         raise PlannerError(err.title + f" ({name})", err.message, located) from None
 
 
+def _syntax_error(exc: tomllib.TOMLDecodeError, text: str) -> tuple[str, int | None, int | None]:
+    """(message, line, column) of a tomllib error; its message names keys as Python tuples."""
+    line, col = getattr(exc, "lineno", None), getattr(exc, "colno", None)  # Python 3.14+
+    msg = (getattr(exc, "msg", None) if line else None) or str(exc)
+    hit = _TOML_POS.match(str(exc))
+    if hit:
+        msg, line, col = hit["msg"], int(hit["line"]), int(hit["col"])
+    elif msg.endswith("(at end of document)"):
+        # The statement that failed is the last one: name its line rather than none.
+        msg = msg.removesuffix("(at end of document)").rstrip()
+        lines = text.rstrip().split("\n")
+        line, col = len(lines), None
+    if msg == "Illegal character '\\n'":  # inside a one-line string
+        msg = "the string is not closed before the end of the line"
+    msg = _TUPLE_KEY.sub(lambda m: ".".join(re.findall(r"'((?:[^'\\]|\\.)*)'", m[0])), msg)
+    return msg, line, col
+
+
+_DATE_LIKE = re.compile(r"(?<![\w-])\d{4}-\d{2}-\d{2}(?![\w-])")
+_TUPLE_KEY = re.compile(r"\((?:'(?:[^'\\]|\\.)*',? ?)+\)")
+
+# Fixes for tomllib's messages (CPython Lib/tomllib/_parser.py), by their first words.
+_SYNTAX_FIXES = (
+    ("Cannot overwrite a value", "the same key is given twice in one table: keep one of them"),
+    ("Cannot declare", "this table is declared twice: merge the two into one, or write "
+     "[[…]] (two brackets) for every element of an array of tables such as [[vehicles]]"),
+    ("Cannot mutate immutable namespace", "a key set inline ({ … } or [ … ]) cannot be "
+     "extended by a later table or dotted key: write it in one place"),
+    ("Cannot redefine namespace", "a table and an array of tables share a name: use "
+     "[[…]] for every element"),
+    ("Duplicate inline table key", "the same key is given twice inside { … }: keep one"),
+    ("Unterminated string", "a string is not closed: add the closing quote on that line"),
+    ("the string is not closed", "add the closing quote on that line (a string in \"…\" "
+     "fits on one line; use \"\"\"…\"\"\" for text over several lines)"),
+    ("Unclosed array", "an array is not closed: add the ']' (and a ',' between items)"),
+    ("Unclosed inline table", "an inline table is not closed: add the '}' on the same line "
+     "(an inline table fits on one line)"),
+    ("Invalid date or datetime", "this is not a real date: check the month (01-12) and the day"),
+    ("Expected '=' after a key", "a key needs '= value' after it: e.g. odometer = 98400"),
+    ("Expected ']' at the end", "close the table header with ']'"),
+    ("Expected ']]' at the end", "close the array-of-tables header with ']]'"),
+    ("Unescaped '\\'", "write a backslash in text as \\\\ (or use 'single quotes')"),
+)
+
+
+# Characters that look like spaces or quotes but are not TOML's (TOML 1.0 spec: whitespace is
+# space and tab; strings use straight quotes). They arrive by copy and paste.
+_LOOKALIKES = {
+    "\ufeff": "an invisible byte-order mark (U+FEFF)",
+    "\u00a0": "a no-break space (U+00A0)",
+    "\u200b": "a zero-width space (U+200B)",
+    "\u3000": "an ideographic space (U+3000)",
+    "\u201c": "a curly quote “ (U+201C)",
+    "\u201d": "a curly quote ” (U+201D)",
+    "\u2018": "a curly quote ‘ (U+2018)",
+    "\u2019": "a curly quote ’ (U+2019)",
+}
+
+
+def _syntax_hint(text: str, line: int | None, msg: str) -> str:
+    default = ("check quotes, brackets and '=' on that line (dates are written 2026-11-20, "
+               "text in double quotes)")
+    for start, fix in _SYNTAX_FIXES:
+        if msg.startswith(start):
+            default = fix
+            break
+    if not line:
+        return default
+    lines = text.split("\n")  # TOML's newline, not str.splitlines()'s wider set
+    here = lines[line - 1] if line <= len(lines) else ""
+    for token in _DATE_LIKE.findall(here):
+        try:
+            dt.date.fromisoformat(token)
+        except ValueError:
+            return f"{token} is not a real date: check the month (01-12) and the day"
+    for ch, what in _LOOKALIKES.items():
+        if ch in here:
+            fix = "type straight double quotes \" instead" if "quote" in what else \
+                "delete it and type a plain space (or nothing)"
+            return f"line {line}, column {here.index(ch) + 1}, holds {what}: {fix}"
+    return default
+
+
 def load_fleet(path: str | os.PathLike[str]) -> LoadedFleet:
     """Read, parse and validate a fleet file."""
     p = Path(path)
@@ -120,32 +254,38 @@ def load_fleet(path: str | os.PathLike[str]) -> LoadedFleet:
 
 
 def write_atomic(path: str | os.PathLike[str], data: bytes) -> None:
-    """Replace `path` with `data` so that it is either the old file or the new one, whole."""
+    """Replace `path` with `data` so that it is either the old file or the new one, whole.
+
+    The data goes to a temporary file in the same folder, is flushed and fsynced, then renamed
+    over the target (`os.replace` is atomic on POSIX and Windows); the folder is fsynced so the
+    rename itself survives a power cut. A symbolic link is followed: its target is replaced and
+    the link stays. On any failure the temporary file is removed and a `PlannerError` says what
+    happened; the previous file is then untouched.
+    """
     target = Path(path)
+    if target.is_symlink():
+        target = Path(os.path.realpath(target))
     folder = target.parent if str(target.parent) else Path(".")
-    if not folder.is_dir():
-        raise PlannerError(f"cannot write {target}", f"the folder {folder} does not exist")
+    _check_writable(target, folder)
     fd = None
     tmp = None
     try:
-        fd, tmp = tempfile.mkstemp(prefix=f".{target.name}.", suffix=".tmp", dir=folder)
+        fd, tmp = tempfile.mkstemp(prefix=f".{target.name}.", suffix=TEMP_SUFFIX, dir=folder)
         with os.fdopen(fd, "wb") as fh:
             fd = None
             fh.write(data)
             fh.flush()
             os.fsync(fh.fileno())
-        if target.exists():
-            os.chmod(tmp, target.stat().st_mode & 0o7777)
-        else:
-            os.chmod(tmp, 0o644 & ~_umask())
+        try:
+            mode = target.stat().st_mode & 0o7777
+        except FileNotFoundError:
+            mode = 0o644 & ~_umask()
+        os.chmod(tmp, mode)
         os.replace(tmp, target)
         tmp = None
         _fsync_dir(folder)
-    except PlannerError:
-        raise
     except OSError as exc:
-        detail = f"{exc.strerror or exc}; the previous file, if any, is unchanged"
-        raise PlannerError(f"cannot write {target}", detail) from None
+        raise PlannerError(f"cannot write {target}", _why(exc, target, folder)) from None
     finally:
         if fd is not None:
             os.close(fd)
@@ -154,32 +294,157 @@ def write_atomic(path: str | os.PathLike[str], data: bytes) -> None:
                 os.unlink(tmp)
             except OSError:
                 pass
+    _remove_stale_temps(target)
+
+
+def _check_writable(target: Path, folder: Path) -> None:
+    """Refuse early, with a clear reason, what would fail half-way."""
+    if not folder.exists():
+        raise PlannerError(f"cannot write {target}",
+                           f"the folder {folder} does not exist: create it, or choose another "
+                           "path")
+    if not folder.is_dir():
+        raise PlannerError(f"cannot write {target}",
+                           f"{_first_file(folder)} is a file, not a folder: choose another path")
+    if target.is_dir():
+        raise PlannerError(f"cannot write {target}",
+                           "it is a folder: give the path of a file inside it, e.g. "
+                           f"{target / 'plan.csv'}")
+    if target.exists() and not os.access(target, os.W_OK):
+        raise PlannerError(f"cannot write {target}",
+                           "the file is read-only: make it writable (or save to another "
+                           "path); it is unchanged")
+
+
+def _first_file(folder: Path) -> Path:
+    """The part of `folder` that exists but is not a folder (for 'x is a file')."""
+    for part in [*reversed(folder.parents), folder]:
+        if part.exists() and not part.is_dir():
+            return part
+    return folder
+
+
+_ERRNO_WORDS = {
+    errno.ENOSPC: "the disk is full: free some space, then try again",
+    getattr(errno, "EDQUOT", -1): "your disk quota is used up: free some space, then try again",
+    errno.EACCES: "no permission to write in {folder}: choose another folder, or ask for "
+                  "write access",
+    errno.EPERM: "the system does not allow writing in {folder}: choose another folder",
+    errno.EROFS: "{folder} is on a read-only disk: choose another folder",
+    errno.ENOENT: "the folder {folder} disappeared while writing (a removed drive or a lost "
+                  "network share?): check it is there, then try again",
+    errno.ENOTDIR: "the folder {folder} disappeared while writing: check it, then try again",
+    errno.EISDIR: "{target} is a folder: give the path of a file",
+    errno.EIO: "the disk reported an input/output error: check the disk or network share",
+}
+
+
+def _why(exc: OSError, target: Path, folder: Path) -> str:
+    """What went wrong and what to do, for an `OSError` raised while writing `target`."""
+    words = _ERRNO_WORDS.get(exc.errno or 0)
+    if exc.errno in (errno.ENOENT, errno.ENOTDIR) and folder.is_dir():
+        words = f"the system refused to create a file in {{folder}} ({exc.strerror}): choose " \
+            "another folder"
+    detail = words.format(folder=folder, target=target) if words else \
+        f"{exc.strerror or exc}: check the disk, then try again"
+    return f"{detail}. The previous file, if any, is unchanged."
+
+
+def _remove_stale_temps(target: Path) -> None:
+    """Remove temporary files that a killed or crashed save left beside `target`.
+
+    Only this module's own names (`.<name>.<random>.tmp`), and only old ones: a younger one may
+    belong to a save still running in another process.
+    """
+    try:
+        now = time.time()
+        for leftover in target.parent.glob(f".{glob.escape(target.name)}.*{TEMP_SUFFIX}"):
+            if now - leftover.stat().st_mtime > STALE_TEMP_SECONDS:
+                leftover.unlink()
+    except OSError:
+        pass
 
 
 def save_fleet_text(loaded: LoadedFleet, text: str) -> LoadedFleet:
     """Save new text for a loaded fleet file: checked, backed up, atomic.
 
     Refuses when the file on disk is no longer the one that was read. The new text must parse
-    and validate, so a save can never leave a file the planner cannot read.
+    and validate, so a save can never leave a file the planner cannot read. The check and the
+    write happen under an exclusive lock on the file (where the system has `flock`), so two
+    processes saving at the same moment cannot both pass the check.
     """
     path = loaded.path
     fleet = parse_fleet_text(text, str(path))
-    try:
-        current = path.read_bytes()
-    except FileNotFoundError:
-        current = None
-    except OSError as exc:
-        raise PlannerError(f"cannot check {path} before saving", exc.strerror or str(exc)) from None
-    if current is None or digest_of(current) != loaded.digest:
-        raise PlannerError(
-            f"{path} changed on disk since it was read",
-            "Nothing was saved. Reload the file to see the other change, then make yours again"
-            if current is not None else "The file was moved or deleted; nothing was saved.",
-        )
-    write_atomic(backup_path(path), current)
     data = ((BOM if loaded.bom else "") + text).encode("utf-8")
-    write_atomic(path, data)
+    with _locked(path):
+        try:
+            current = path.read_bytes()
+        except FileNotFoundError:
+            current = None
+        except OSError as exc:
+            raise PlannerError(f"{path} was not saved",
+                               f"it could not be read back to check it: "
+                               f"{exc.strerror or exc}") from None
+        if current is None or digest_of(current) != loaded.digest:
+            raise PlannerError(
+                f"{path} changed on disk since it was read",
+                "Nothing was saved. Reload the file to see the other change, then make yours "
+                "again." if current is not None else
+                "The file was moved or deleted; nothing was saved. Save your text elsewhere, "
+                "then check where the file went.",
+            )
+        try:
+            write_atomic(backup_path(path), current)
+        except PlannerError as err:
+            raise PlannerError(f"{path} was not saved",
+                               f"the backup copy {backup_path(path)} could not be written: "
+                               f"{err.message}") from None
+        try:
+            write_atomic(path, data)
+        except PlannerError as err:
+            raise PlannerError(f"{path} was not saved", err.message) from None
     return LoadedFleet(path=path, fleet=fleet, text=text, digest=digest_of(data), bom=loaded.bom)
+
+
+@contextlib.contextmanager
+def _locked(path: Path) -> Iterator[None]:
+    """Hold an exclusive `flock` on the file at `path` (best effort: none where unsupported).
+
+    The lock is on the file's inode, and a save replaces the inode; so after the wait the
+    lock is taken again when the path has meanwhile come to name another file.
+    """
+    if fcntl is None:
+        yield
+        return
+    deadline = time.monotonic() + LOCK_WAIT_SECONDS
+    while True:
+        try:
+            fd = os.open(path, os.O_RDONLY)
+        except OSError:
+            yield  # missing or unreadable: the check that follows says so
+            return
+        try:
+            while True:
+                try:
+                    fcntl.flock(fd, fcntl.LOCK_EX | fcntl.LOCK_NB)
+                    break
+                except BlockingIOError:
+                    if time.monotonic() > deadline:
+                        raise PlannerError(f"{path} was not saved",
+                                           "another program is saving it right now: wait a "
+                                           "moment, then try again") from None
+                    time.sleep(0.01)
+                except OSError:  # no locks on this file system: go on without one
+                    break
+            try:
+                same = os.fstat(fd).st_ino == os.stat(path).st_ino
+            except OSError:
+                same = True  # gone meanwhile: the check that follows says so
+            if same:
+                yield
+                return
+        finally:
+            os.close(fd)
 
 
 def backup_path(path: Path) -> Path:

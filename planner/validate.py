@@ -9,9 +9,12 @@ from __future__ import annotations
 
 import datetime as dt
 import difflib
+import functools
+import math
 import types
 import typing
 from collections.abc import Iterable
+from enum import Enum
 from typing import Any
 
 from pydantic import BaseModel, ValidationError
@@ -30,35 +33,35 @@ def build_fleet(data: dict[str, Any]) -> Fleet:
     if not isinstance(raw_vehicles, list):
         problems.append(
             Problem(
-                "vehicles must be an array of tables",
+                f"vehicles must be an array of tables, found {_found(raw_vehicles)}",
                 ("vehicles",),
-                hint="write each vehicle as a [[vehicles]] table",
+                hint="write each vehicle as its own [[vehicles]] table (two brackets)",
             )
         )
         raw_vehicles = []
     top = {k: v for k, v in data.items() if k != "vehicles"}
-    shell: Fleet | None = None
-    try:
-        shell = Fleet.model_validate(top)
-    except ValidationError as exc:
-        problems.extend(_from_pydantic(exc, (), None))
+    shell, found = _validated(Fleet, top, (), None)
+    problems.extend(found)
 
     vehicles: list[tuple[int, Vehicle]] = []
     for index, raw in enumerate(raw_vehicles):
-        vid = raw.get("id") if isinstance(raw, dict) else None
-        vid = str(vid) if vid is not None else f"#{index + 1}"
+        vid = _vehicle_name(raw, index)
         if not isinstance(raw, dict):
-            problems.append(Problem("a vehicle must be a table", ("vehicles", index), vehicle=vid))
+            problems.append(Problem(f"a vehicle must be a table, found {_found(raw)}",
+                                    ("vehicles", index), vehicle=vid,
+                                    hint="write each vehicle as a [[vehicles]] table"))
             continue
-        try:
-            vehicles.append((index, Vehicle.model_validate(raw)))
-        except ValidationError as exc:
-            problems.extend(_from_pydantic(exc, ("vehicles", index), vid))
+        vehicle, found = _validated(Vehicle, raw, ("vehicles", index), vid)
+        problems.extend(found)
+        if vehicle is not None:
+            vehicles.append((index, vehicle))
 
     engines = shell.engines if shell else {}
     raw_engines = data.get("engines")
     engine_ids = set(raw_engines) if isinstance(raw_engines, dict) else set()
     problems.extend(check_vehicles(vehicles, engines, engine_ids))
+    if shell is not None:
+        problems.extend(check_settings(shell))
     if problems:
         raise PlannerError(
             "The fleet file has problems",
@@ -68,6 +71,44 @@ def build_fleet(data: dict[str, Any]) -> Fleet:
         )
     assert shell is not None
     return shell.model_copy(update={"vehicles": [v for _, v in vehicles]})
+
+
+def _vehicle_name(raw: Any, index: int) -> str:
+    """How problems name a vehicle: its id when it has a usable one, else its position."""
+    vid = raw.get("id") if isinstance(raw, dict) else None
+    if isinstance(vid, str) and vid.strip() and len(vid) <= 64:
+        return vid
+    if isinstance(vid, int) and not isinstance(vid, bool):
+        return str(vid)
+    return f"#{index + 1}"
+
+
+def _validated(model: type[Any], raw: dict[str, Any], prefix: Path,
+               vehicle: str | None) -> tuple[Any, list[Problem]]:
+    """`model` from `raw`: wrong TOML types first (never converted), then pydantic's rules."""
+    problems: list[Problem] = []
+    _type_problems(raw, ("table", model), prefix, vehicle, problems)
+    obj = None
+    try:
+        obj = model.model_validate(raw)
+    except ValidationError as exc:
+        typed = {p.path for p in problems}
+        for p in _from_pydantic(exc, prefix, vehicle):
+            if not any(p.path[: len(t)] == t for t in typed):  # one report per bad value
+                problems.append(p)
+    return (None if problems else obj), problems
+
+
+def check_settings(fleet: Fleet) -> list[Problem]:
+    """Dates in the fleet-wide tables stay inside the years the planner accepts."""
+    problems = []
+    for k, day in enumerate(fleet.workshop.closed):
+        if not EARLIEST_DATE <= day <= LATEST_DATE:
+            problems.append(Problem(
+                f"closed day {day.isoformat()} is outside {EARLIEST_DATE.year}-"
+                f"{LATEST_DATE.year}", ("workshop", "closed", k),
+                hint="check the year of the holiday"))
+    return problems
 
 
 def check_vehicles(
@@ -162,9 +203,11 @@ def _check_dates_and_odometers(v: Vehicle, add: Any) -> None:
     if v.first_registered is not None and v.first_registered > v.in_service:
         add(f"first_registered {v.first_registered} is after in_service {v.in_service}",
             "first_registered", hint="a vehicle is registered before it enters your service")
-    if not EARLIEST_DATE <= v.in_service <= LATEST_DATE:
-        add(f"in_service {v.in_service.isoformat()} is outside {EARLIEST_DATE.year}-"
-            f"{LATEST_DATE.year}", "in_service", hint="check the year")
+    for name in ("in_service", "first_registered"):
+        day = getattr(v, name)
+        if day is not None and not EARLIEST_DATE <= day <= LATEST_DATE:
+            add(f"{name} {day.isoformat()} is outside {EARLIEST_DATE.year}-"
+                f"{LATEST_DATE.year}", name, hint="check the year")
 
     # Odometers only go forward: each value must be at least every value dated before it.
     dated.append((v.in_service, v.in_service_odometer, ("in_service_odometer",), "in service"))
@@ -184,9 +227,222 @@ def _check_dates_and_odometers(v: Vehicle, add: Any) -> None:
             highest = (day, odo, kind)
 
     for k, span in enumerate(v.unavailable):
-        if span.end < span.start:
+        outside = [e for e in ("start", "end")
+                   if not EARLIEST_DATE <= getattr(span, e) <= LATEST_DATE]
+        for end in outside:
+            add(f"unavailable {end} {getattr(span, end).isoformat()} is outside "
+                f"{EARLIEST_DATE.year}-{LATEST_DATE.year}", "unavailable", k, end,
+                hint="check the year")
+        if not outside and span.end < span.start:
             add(f"unavailable range ends ({span.end}) before it starts ({span.start})",
                 "unavailable", k, "end", hint="swap start and end")
+
+
+# -- TOML types: a value of the wrong type is reported, never converted ------------------------
+#
+# tomllib gives each TOML type its own Python type (TOML 1.0 spec, "Table" of types; the
+# standard library's tomllib docs, conversion table). Pydantic's lax mode would quietly turn
+# odometer = "12" into 12.0, true into 1.0, in_service = 0 into 1970-01-01 and 12.0 months into
+# 12, so the kinds are checked here first, against the models' own annotations.
+
+Kind = Any  # "text" | "integer" | "number" | "boolean" | "date" | (tag, inner) | None
+
+_FITS: dict[str, tuple[type, ...]] = {
+    "text": (str,),
+    "integer": (int,),
+    "number": (int, float),
+    "boolean": (bool,),
+    "date": (dt.date,),
+}
+_WANTED = {
+    "text": "text in double quotes",
+    "integer": "a whole number",
+    "number": "a number",
+    "boolean": "true or false",
+    "date": "a date (YYYY-MM-DD)",
+}
+
+
+def _kind(annotation: Any) -> Kind:
+    """The TOML kind a field accepts, from its type annotation (None: not checked here)."""
+    origin = typing.get_origin(annotation)
+    args = typing.get_args(annotation)
+    if origin is typing.Annotated:
+        return _kind(args[0])
+    if origin in (typing.Union, types.UnionType):
+        kinds = {repr(k): k for k in (_kind(a) for a in args if a is not type(None))}
+        return next(iter(kinds.values())) if len(kinds) == 1 else None
+    if origin is typing.Literal:
+        if all(isinstance(a, str) for a in args):
+            return "text"
+        if all(type(a) is int for a in args):
+            return "integer"
+        return None
+    if origin is list:
+        return ("array", _kind(args[0])) if args else None
+    if origin is dict:
+        return ("tables", _kind(args[1])) if len(args) == 2 else None
+    if _is_model(annotation):
+        return ("table", annotation)
+    if isinstance(annotation, type):
+        if issubclass(annotation, Enum):
+            return "text" if issubclass(annotation, str) else None
+        for cls, kind in ((bool, "boolean"), (int, "integer"), (float, "number"),
+                          (str, "text"), (dt.datetime, None), (dt.date, "date")):
+            if issubclass(annotation, cls):
+                return kind
+    return None
+
+
+@functools.cache
+def _field_checks(model: type[BaseModel]) -> dict[str, tuple[Kind, tuple[type, ...] | None]]:
+    """Per key of `model`'s table: its kind, and the Python types tomllib may give it."""
+    checks = {}
+    for name, f in model.model_fields.items():
+        kind = _kind(f.annotation)
+        checks[f.alias or name] = (kind, _FITS.get(kind) if isinstance(kind, str) else None)
+    return checks
+
+
+def _type_problems(value: Any, kind: Kind, path: Path, vehicle: str | None,
+                   out: list[Problem]) -> None:
+    """Append a problem for every value under `value` whose TOML type `kind` does not allow.
+
+    Runs over every value of the file, so the common case (a scalar of the right type) costs
+    one dictionary lookup and one type test.
+    """
+    if kind is None:
+        return
+    if not isinstance(kind, tuple):
+        if type(value) not in _FITS[kind]:
+            out.append(_wrong_type(value, kind, path, vehicle))
+        elif type(value) is float and not math.isfinite(value):
+            out.append(_not_finite(value, kind, path, vehicle))
+        return
+    tag, inner = kind  # a container: a wrong shape is pydantic's to report
+    if tag == "table" and type(value) is dict:
+        checks = _field_checks(inner)
+        for key, item in value.items():
+            check = checks.get(key)
+            if check is None:
+                continue
+            fits = check[1]
+            if fits is None or type(item) not in fits or (
+                    type(item) is float and not math.isfinite(item)):
+                _type_problems(item, check[0], path + (key,), vehicle, out)
+    elif tag == "array" and type(value) is list:
+        for i, item in enumerate(value):
+            _type_problems(item, inner, path + (i,), vehicle, out)
+    elif tag == "tables" and type(value) is dict:
+        for key, item in value.items():
+            _type_problems(item, inner, path + (key,), vehicle, out)
+
+
+def _not_finite(value: float, kind: str, path: Path, vehicle: str | None) -> Problem:
+    return Problem(f"{_show(value)} is not a usable number", path,
+                   hint=f"write the real value, e.g. {_key(path)}120000"
+                   if kind == "number" else "write the real value", vehicle=vehicle)
+
+
+def _key(path: Path) -> str:
+    """`name = ` for a hint's example, or nothing for an item of an array."""
+    return f"{path[-1]} = " if path and isinstance(path[-1], str) else ""
+
+
+def _wrong_type(value: Any, kind: str, path: Path, vehicle: str | None) -> Problem:
+    key = _key(path)
+    what = _toml_type(value)
+    message = f"wrong type: expected {_WANTED[kind]}, found {_found(value)}"
+    plain = value.strip() if isinstance(value, str) else None
+    hint = f"write {_WANTED[kind]}, e.g. {key}{_EXAMPLE[kind]}"
+    if kind == "integer" and isinstance(value, float) and math.isfinite(value):
+        hint = f"write {_WANTED[kind]}, e.g. {key}{math.floor(value)}"
+    if kind in ("number", "integer") and plain is not None and _is_number(plain):
+        hint = f"write the number without quotes: {key}{plain}"
+    elif kind == "integer" and isinstance(value, float) and value.is_integer():
+        hint = f"write a whole number: {key}{int(value)}"
+    elif kind == "date" and plain is not None and _is_date(plain):
+        hint = f"write the date without quotes: {key}{plain}"
+    elif kind == "date" and isinstance(value, dt.datetime):
+        hint = f"write the day only, without a time: {key}{value.date().isoformat()}"
+    elif kind == "boolean" and plain is not None and plain.lower() in ("true", "false"):
+        hint = f"write it without quotes, in small letters: {key}{plain.lower()}"
+    elif kind == "text" and what not in ("array", "table"):
+        hint = f'put it in double quotes: {key}"{_show(value)}"'
+    return Problem(message, path, hint=hint, vehicle=vehicle)
+
+
+_EXAMPLE = {"text": '"…"', "integer": "12", "number": "120000", "boolean": "true",
+            "date": "2026-11-20"}
+
+
+def _is_number(text: str) -> bool:
+    try:
+        return math.isfinite(float(text)) and "," not in text and "_" not in text
+    except ValueError:
+        return False
+
+
+def _is_date(text: str) -> bool:
+    try:
+        dt.date.fromisoformat(text)
+    except ValueError:
+        return False
+    return len(text) == 10
+
+
+def _toml_type(value: Any) -> str:
+    """The TOML type of a parsed value, in the words of the TOML 1.0 spec."""
+    if isinstance(value, bool):
+        return "boolean"
+    if isinstance(value, int):
+        return "integer"
+    if isinstance(value, float):
+        return "float"
+    if isinstance(value, str):
+        return "text"
+    if isinstance(value, dt.datetime):
+        return "date-time"
+    if isinstance(value, dt.date):
+        return "date"
+    if isinstance(value, dt.time):
+        return "time"
+    if isinstance(value, list):
+        return "array"
+    if isinstance(value, dict):
+        return "table"
+    return type(value).__name__
+
+
+def _found(value: Any) -> str:
+    """`text "12"`, `true`, `an array`: what the file holds, for "found …"."""
+    what = _toml_type(value)
+    if what == "array":
+        return "an array"
+    if what == "table":
+        return "a table"
+    return f"{what} {_show(value)}" if what in ("text", "date-time", "time") else _show(value)
+
+
+def _show(value: Any, limit: int = 60) -> str:
+    """A value as it would be written in the file, shortened."""
+    if isinstance(value, bool):
+        shown = "true" if value else "false"
+    elif isinstance(value, str):
+        shown = '"' + value.replace("\\", "\\\\").replace('"', '\\"') + '"'
+        shown = shown.encode("unicode_escape").decode("ascii").replace("\\\\", "\\")
+    elif isinstance(value, (dt.date, dt.time)):
+        shown = value.isoformat()
+    elif isinstance(value, float):
+        shown = "nan" if math.isnan(value) else ("inf" if value > 0 else "-inf") \
+            if math.isinf(value) else repr(value)
+    elif isinstance(value, list):
+        shown = f"an array of {len(value)}"
+    elif isinstance(value, dict):
+        shown = "a table"
+    else:
+        shown = repr(value)
+    return shown if len(shown) <= limit else shown[: limit - 3] + "..."
 
 
 # -- pydantic errors in the fleet file's own words --------------------------------------------
@@ -196,29 +452,105 @@ def _from_pydantic(exc: ValidationError, prefix: Path, vehicle: str | None) -> l
     for err in exc.errors():
         loc = tuple(p for p in err["loc"] if p != "[key]")
         path = prefix + loc
-        kind = err["type"]
-        hint = ""
-        if kind == "extra_forbidden":
-            key = str(loc[-1]) if loc else "?"
-            allowed = _allowed_keys(path[:-1])
-            near = difflib.get_close_matches(key, allowed, n=1, cutoff=0.6)
-            message = f"unknown key {key!r}"
-            hint = (f"did you mean {near[0]!r}?" if near else
-                    "allowed here: " + ", ".join(allowed) if allowed else "remove it")
-        elif kind == "missing":
-            message = "required key is missing"
-            hint = f"add {loc[-1]} = …" if loc else ""
-        else:
-            shown = repr(err.get("input"))
-            if len(shown) > 60:
-                shown = shown[:57] + "..."
-            message = f"{err['msg']} (found {shown})"
+        message, hint = _explain(err, path, "[key]" in err["loc"])
         problems.append(Problem(message, path, hint=hint, vehicle=vehicle))
     return problems
 
 
+def _explain(err: Any, path: Path, is_key: bool = False) -> tuple[str, str]:
+    """(message, fix) for one pydantic error at `path` (the full data path)."""
+    kind = err["type"]
+    ctx = err.get("ctx") or {}
+    value = err.get("input")
+    name = next((str(p) for p in reversed(path) if isinstance(p, str)), "")
+    if is_key:  # the name of a table in a table of tables, e.g. an engine profile's id
+        table = ".".join(str(p) for p in path[:-1])
+        return (f"the name {_show(value)} in [{table}] is not usable: {err['msg'].lower()}",
+                f"give it a name of 1 to 64 characters, e.g. [{table}.p16]")
+    if kind == "extra_forbidden":
+        key = str(path[-1]) if path else "?"
+        allowed = _allowed_keys(path[:-1])
+        near = difflib.get_close_matches(key, allowed, n=1, cutoff=0.6)
+        hint = (f"did you mean {near[0]!r}?" if near else
+                "allowed here: " + ", ".join(allowed) if allowed else "remove it")
+        return f"unknown key {key!r}", hint
+    if kind == "missing":
+        described = _description(path)
+        return "required key is missing", f"add {name} = …" + (
+            f": {described[0].lower() + described[1:].rstrip('.')}" if described else "")
+    if path == ("schema",):
+        return (f"unsupported format version {_show(value)}",
+                "this beltplan reads schema = 1; a file for another version needs the beltplan "
+                "that wrote it (or set schema = 1 if it follows this README's format)")
+    found = f"(found {_show(value)})"
+    item = bool(path) and isinstance(path[-1], int)  # an item of an array, e.g. parts[0]
+    if kind in ("enum", "literal_error"):
+        return (f"{_show(value)} is not allowed here: expected {ctx.get('expected', '?')}",
+                "write one of the words listed, in double quotes")
+    for bound, words in (("gt", "greater than"), ("ge", "at least"),
+                         ("lt", "less than"), ("le", "at most")):
+        if kind.startswith(("greater_than", "less_than")) and bound in ctx:
+            limit = _number_text(ctx[bound])
+            low = bound in ("gt", "ge")
+            return (f"{name} must be {words} {limit} {found}",
+                    "check for a minus sign or a missing digit" if low else
+                    f"check for an extra digit: {limit} is a sanity limit no real value reaches")
+    if kind == "string_too_long":
+        return (f"text too long: {len(value)} characters, at most {ctx.get('max_length')}",
+                "shorten it; long notes belong in your own records")
+    if kind == "string_too_short":
+        if item:
+            return f"an item of {name} is empty", "remove the empty \"\" from the array"
+        what = "an id (fleet number or plate)" if name == "id" else "some text"
+        return f"{name} is empty", f"write {what}, or remove the key"
+    if kind in ("model_type", "model_attributes_type", "dict_type"):
+        header = ".".join(str(p) for p in path if isinstance(p, str))
+        if item:
+            example = "{ date = 2026-11-20, odometer = 98400 }" if name == "readings" else \
+                "{ … }"
+            return (f"an item of {name} must be a table, found {_found(value)}",
+                    f"write each item as an inline table: {example}")
+        return (f"expected a table, found {_found(value)}",
+                f"write it as a [{header}] table, or inline as {name} = {{ … }}")
+    if kind in ("list_type", "tuple_type"):
+        if name in ("belt_jobs", "unavailable"):
+            return (f"expected an array of tables, found {_found(value)}",
+                    f"write each as a [[vehicles.{name}]] table (two brackets), or "
+                    f"{name} = [{{ … }}, …]")
+        example = "{ date = 2026-11-20, odometer = 98400 }, …" if name == "readings" else "…"
+        return (f"expected an array, found {_found(value)}",
+                f"write it in square brackets: {name} = [{example}]")
+    return (f"{err['msg']} {found}",
+            "see the fleet-file reference in the README (`beltplan schema` lists every key)")
+
+
+def _number_text(value: Any) -> str:
+    if isinstance(value, float) and value.is_integer():
+        value = int(value)
+    return f"{value:,}" if isinstance(value, int) and abs(value) >= 10000 else str(value)
+
+
+def _description(path: Path) -> str:
+    """The model's description of the field at `path`, for hints."""
+    parent = _model_at(path[:-1])
+    if parent is None or not path or not isinstance(path[-1], str):
+        return ""
+    for name, f in parent.model_fields.items():
+        if path[-1] in (name, f.alias):
+            return f.description or ""
+    return ""
+
+
 def _allowed_keys(path: Path) -> list[str]:
     """Keys allowed in the table at `path`, for 'did you mean' hints."""
+    model = _model_at(path)
+    if model is None:
+        return []
+    return [f.alias or name for name, f in model.model_fields.items()]
+
+
+def _model_at(path: Path) -> Any:
+    """The model of the table at `path`, or None when it is not a table of the file."""
     model: Any = Fleet
     for part in path:
         if isinstance(part, int):
@@ -230,14 +562,12 @@ def _allowed_keys(path: Path) -> list[str]:
         if field is None:
             alias_hit = [f for f in model.model_fields.values() if f.alias == part]
             if not alias_hit:
-                return []
+                return None
             field = alias_hit[0]
         model = _inner_model(field.annotation)
         if model is None:
-            return []
-    if not _is_model(model):
-        return []
-    return [f.alias or name for name, f in model.model_fields.items()]
+            return None
+    return model if _is_model(model) else None
 
 
 def _is_model(obj: Any) -> bool:
