@@ -27,6 +27,7 @@ class FormScreen(Popup[Any]):
     def __init__(self, spec: FormSpec) -> None:
         super().__init__()
         self.spec = spec
+        self.attempts = 0  # how many times apply ran (tests wait on it)
 
     def compose(self) -> ComposeResult:
         with Vertical(classes="panel") as panel:
@@ -83,6 +84,7 @@ class FormScreen(Popup[Any]):
             widget.value = text
 
     def action_apply(self) -> None:
+        self.attempts += 1
         self._clear_problems()
         values: dict[str, Any] = {}
         problems: list[FormProblem] = []
@@ -120,7 +122,7 @@ class FormScreen(Popup[Any]):
             if p.vehicle and p.vehicle != self.spec.subject:
                 text.append(literal(f"vehicle {p.vehicle}, "))
             if p.field:
-                text.append(literal(labels.get(p.field, p.field)), style="bold")
+                text.append(literal(labels.get(p.field, p.field), "bold"))
                 text.append(": ")
             text.append(literal(p.message))
             if p.hint:
@@ -158,3 +160,4 @@ class FormScreen(Popup[Any]):
             _, fill = self.spec.quick[int(ident.removeprefix("quick-"))]
             for name, text in fill.items():
                 self.set_raw(name, text)
+                self.query_one(f"#f-{name}").focus()  # enter now applies

@@ -82,10 +82,21 @@ def odometer_plot(points: Sequence[tuple[dt.date, float]], as_of: dt.date,
     last = dt.date.fromordinal(x1).isoformat()
     gap = max(1, width - len(first) - len(last))
     out.append(" " * (label_w + 2) + first + " " * gap + last + "\n", style=DIM)
-    legend = f"● odometer values  ○ estimate on {as_of}"
+    keys = ["● odometer values", f"○ estimate on {as_of}"]
     if due_in_range:
-        legend += f"\n┄ limit {due_odometer:,.0f} {unit}"
+        keys.append(f"┄ limit {due_odometer:,.0f} {unit}")
     elif due_odometer is not None:
-        legend += f"\nthe limit, {due_odometer:,.0f} {unit}, is off the chart"
-    out.append(legend, style=DIM)
+        keys.append(f"the limit, {due_odometer:,.0f} {unit}, is off the chart")
+    out.append(_wrap(keys, total_width), style=DIM)
     return out
+
+
+def _wrap(parts: list[str], width: int) -> str:
+    """Join `parts` with two spaces, starting a new line rather than passing `width`."""
+    lines = [parts[0]]
+    for part in parts[1:]:
+        if len(lines[-1]) + 2 + len(part) <= width:
+            lines[-1] += "  " + part
+        else:
+            lines.append(part)
+    return "\n".join(lines)
