@@ -17,7 +17,8 @@ from __future__ import annotations
 
 import datetime as dt
 import re
-from collections.abc import Iterable, Mapping
+import tomllib
+from collections.abc import Callable, Iterable, Mapping
 from enum import Enum
 from typing import Any
 
@@ -49,65 +50,68 @@ Values = Mapping[str, Any]
 
 def add_reading(text: str, vehicle_id: str, date: dt.date, odometer: float) -> str:
     """Append `{ date = …, odometer = … }` to the vehicle's `readings` array."""
-    doc = _parse(text)
-    vehicle = _vehicle(doc, vehicle_id)
-    reading = _inline({"date": date, "odometer": _number(odometer)})
-    readings = vehicle.get("readings")
-    if readings is None:
-        fresh = tomlkit.array()
-        fresh.add_line(reading, indent="  ")
-        fresh.add_line(indent="")
-        vehicle["readings"] = fresh
-    elif not isinstance(readings, Array):
-        raise PlannerError(f"vehicle {vehicle_id}: readings is not an array",
-                           "Fix the file by hand, then reload.")
-    elif _is_multiline(readings):
-        readings.add_line(reading, indent=_indent_of(readings))
-    else:
-        readings.append(reading)
-    return _dump(doc, text)
+    def change(doc: TOMLDocument) -> None:
+        vehicle = _vehicle(doc, vehicle_id)
+        reading = _inline({"date": date, "odometer": _number(odometer)})
+        readings = vehicle.get("readings")
+        if readings is None:
+            fresh = tomlkit.array()
+            fresh.add_line(reading, indent="  ")
+            fresh.add_line(indent="")
+            vehicle["readings"] = fresh
+        elif not isinstance(readings, Array):
+            raise PlannerError(f"vehicle {vehicle_id}: readings is not an array",
+                               "Fix the file by hand, then reload.")
+        elif _is_multiline(readings):
+            readings.add_line(reading, indent=_indent_of(readings))
+        else:
+            readings.append(reading)
+
+    return _edit(text, change, _vehicle_region(text, vehicle_id))
 
 
 def add_belt_job(text: str, vehicle_id: str, job: Values) -> str:
     """Add a `[[vehicles.belt_jobs]]` table after the vehicle's last job."""
-    doc = _parse(text)
-    vehicle = _vehicle(doc, vehicle_id)
-    table = _table(job, JOB_KEYS)
-    jobs = vehicle.get("belt_jobs")
-    if jobs is None:
-        # The vehicle's own trailing blank lines and comments go below its first job.
-        trailer = _pop_trailer(vehicle)
-        vehicle["belt_jobs"] = tomlkit.aot()
-        vehicle["belt_jobs"].append(table)
-        _push_trailer(table, trailer)
-    elif isinstance(jobs, AoT):
-        previous = _last_table(jobs[-1]) if len(jobs) else vehicle
-        jobs.append(table)
-        _share_trailer(previous, table)
-    else:
-        raise PlannerError(f"vehicle {vehicle_id}: belt_jobs is not an array of tables",
-                           "Write each job as a [[vehicles.belt_jobs]] table, then reload.")
-    return _dump(doc, text)
+    def change(doc: TOMLDocument) -> None:
+        vehicle = _vehicle(doc, vehicle_id)
+        table = _table(job, JOB_KEYS)
+        jobs = vehicle.get("belt_jobs")
+        if jobs is None:
+            # The vehicle's own trailing blank lines and comments go below its first job.
+            trailer = _pop_trailer(vehicle)
+            vehicle["belt_jobs"] = tomlkit.aot()
+            vehicle["belt_jobs"].append(table)
+            _push_trailer(table, trailer)
+        elif isinstance(jobs, AoT):
+            previous = _last_table(jobs[-1]) if len(jobs) else vehicle
+            jobs.append(table)
+            _share_trailer(previous, table)
+        else:
+            raise PlannerError(f"vehicle {vehicle_id}: belt_jobs is not an array of tables",
+                               "Write each job as a [[vehicles.belt_jobs]] table, then reload.")
+
+    return _edit(text, change, _vehicle_region(text, vehicle_id))
 
 
 def add_vehicle(text: str, values: Values) -> str:
     """Append a new `[[vehicles]]` table at the end of the vehicles."""
-    doc = _parse(text)
-    table = _table(values, VEHICLE_KEYS)
-    vehicles = doc.get("vehicles")
-    if vehicles is None:
-        previous = _last_table_of_document(doc)
-        doc["vehicles"] = tomlkit.aot()
-        doc["vehicles"].append(table)
-    elif isinstance(vehicles, AoT):
-        previous = _last_table(vehicles[-1]) if len(vehicles) else None
-        vehicles.append(table)
-    else:
-        raise PlannerError("vehicles is not an array of tables",
-                           "Write each vehicle as a [[vehicles]] table, then reload.")
-    if previous is not None:
-        _share_trailer(previous, table, separate=True)
-    return _dump(doc, text)
+    def change(doc: TOMLDocument) -> None:
+        table = _table(values, VEHICLE_KEYS)
+        vehicles = doc.get("vehicles")
+        if vehicles is None:
+            previous = _last_table_of_document(doc)
+            doc["vehicles"] = tomlkit.aot()
+            doc["vehicles"].append(table)
+        elif isinstance(vehicles, AoT):
+            previous = _last_table(vehicles[-1]) if len(vehicles) else None
+            vehicles.append(table)
+        else:
+            raise PlannerError("vehicles is not an array of tables",
+                               "Write each vehicle as a [[vehicles]] table, then reload.")
+        if previous is not None:
+            _share_trailer(previous, table, separate=True)
+
+    return _edit(text, change, _vehicle_region(text, None))
 
 
 def edit_vehicle(text: str, vehicle_id: str, values: Values) -> str:
@@ -116,10 +120,10 @@ def edit_vehicle(text: str, vehicle_id: str, values: Values) -> str:
     A key whose value does not change is not rewritten, so its formatting and its comment
     survive; a key set to the model's default where the file had none is not added.
     """
-    doc = _parse(text)
-    vehicle = _vehicle(doc, vehicle_id)
-    _update(vehicle, values, Vehicle.model_fields)
-    return _dump(doc, text)
+    def change(doc: TOMLDocument) -> None:
+        _update(_vehicle(doc, vehicle_id), values, Vehicle.model_fields)
+
+    return _edit(text, change, _vehicle_region(text, vehicle_id))
 
 
 def delete_vehicle(text: str, vehicle_id: str) -> str:
@@ -128,45 +132,150 @@ def delete_vehicle(text: str, vehicle_id: str) -> str:
     Comments that stood at the end of the vehicle's last table introduce what follows, so
     they are kept (moved to the end of the table before it).
     """
-    doc = _parse(text)
-    vehicles = doc.get("vehicles")
-    index = _vehicle_index(doc, vehicle_id)
-    assert isinstance(vehicles, AoT)
-    trailer = _pop_trailer(_last_table(vehicles[index]))
-    if index > 0:
-        before: Table | None = _last_table(vehicles[index - 1])
-    else:
-        before = _table_before(doc, "vehicles")
-    del vehicles[index]
-    if before is not None and any(isinstance(item, Comment) for item in trailer):
-        own = _trailer_of(before)
-        if own and isinstance(own[-1], Whitespace) and isinstance(trailer[0], Whitespace):
-            trailer = trailer[1:]
-        _push_trailer(before, trailer)
-    return _dump(doc, text)
+    def change(doc: TOMLDocument) -> None:
+        vehicles = doc.get("vehicles")
+        index = _vehicle_index(doc, vehicle_id)
+        assert isinstance(vehicles, AoT)
+        trailer = _pop_trailer(_last_table(vehicles[index]))
+        if index > 0:
+            before: Table | None = _last_table(vehicles[index - 1])
+        else:
+            before = _table_before(doc, "vehicles")
+        del vehicles[index]
+        if before is not None and any(isinstance(item, Comment) for item in trailer):
+            own = _trailer_of(before)
+            if own and isinstance(own[-1], Whitespace) and isinstance(trailer[0], Whitespace):
+                trailer = trailer[1:]
+            _push_trailer(before, trailer)
+
+    # The vehicle before it is edited too (it may receive comments): both in the region.
+    return _edit(text, change, _vehicle_region(text, vehicle_id, with_previous=True))
 
 
 def set_engine(text: str, profile_id: str, values: Values) -> str:
     """Add the `[engines.<profile_id>]` profile, or set keys of an existing one."""
-    doc = _parse(text)
-    engines = doc.get("engines")
-    if engines is not None and not isinstance(engines, Table):
-        raise PlannerError("engines is not a table", "Fix the file by hand, then reload.")
-    if engines is not None and profile_id in engines:
-        profile = engines[profile_id]
-        if not isinstance(profile, Table):
-            raise PlannerError(f"engines.{profile_id} is not a table",
-                               "Fix the file by hand, then reload.")
-        _update(profile, values, EngineProfile.model_fields)
-        return _dump(doc, text)
-    table = _table(values, ENGINE_KEYS)
-    if engines is None:
+    def change(doc: TOMLDocument) -> None:
+        engines = doc.get("engines")
+        if engines is not None and not isinstance(engines, Table):
+            raise PlannerError("engines is not a table", "Fix the file by hand, then reload.")
+        if engines is not None and profile_id in engines:
+            profile = engines[profile_id]
+            if not isinstance(profile, Table):
+                raise PlannerError(f"engines.{profile_id} is not a table",
+                                   "Fix the file by hand, then reload.")
+            _update(profile, values, EngineProfile.model_fields)
+            return
+        table = _table(values, ENGINE_KEYS)
+        assert engines is not None
+        previous = _last_table(engines)
+        engines[profile_id] = table
+        if previous is not engines:
+            _share_trailer(previous, table, separate=True)
+
+    if not _ENGINE_HEADER.search(text) and "engines" not in _parse(text):
+        table = _table(values, ENGINE_KEYS)
         return _crlf(text + _engine_text(profile_id, table, text), text)
-    previous = _last_table(engines)
-    engines[profile_id] = table
-    if previous is not engines:
-        _share_trailer(previous, table, separate=True)
+    return _edit(text, change, _engine_region(text, profile_id))
+
+
+# -- editing only the part of the text an edit is about ---------------------------------------
+#
+# tomlkit reads a large file slowly (seconds for thousands of vehicles), so an edit parses only
+# the tables it touches: the text from the vehicle's [[vehicles]] line to the next one (or the
+# profile's [engines.<id>] table). The region is checked (it must parse, and hold exactly the
+# tables expected) and otherwise the whole text is used; the caller validates the result.
+
+SLICING = True  # tests compare the result with and without it
+_VEHICLE_HEADER = re.compile(r"^[ \t]*\[\[[ \t]*vehicles[ \t]*\]\][ \t]*(#.*)?$", re.M)
+_ENGINE_HEADER = re.compile(r"^[ \t]*\[[ \t]*engines[ \t]*\.[ \t]*(?P<id>[A-Za-z0-9_-]+|"
+                            r"\"(?:[^\"\\\n]|\\.)*\"|'[^'\n]*')[ \t]*\][ \t]*(#.*)?$", re.M)
+_ANY_HEADER = re.compile(r"^[ \t]*\[", re.M)
+_ID_LINE = re.compile(r"^[ \t]*id[ \t]*=.*$", re.M)
+
+Region = tuple[int, int, Callable[[TOMLDocument], bool]]
+
+
+def _edit(text: str, change: Callable[[TOMLDocument], None], region: Region | None) -> str:
+    if SLICING and region is not None:
+        start, end, expected = region
+        try:
+            part = tomlkit.parse(text[start:end])
+        except Exception:  # not a self-contained piece: use the whole text
+            part = None
+        if part is not None and expected(part):
+            change(part)
+            return _crlf(text[:start] + tomlkit.dumps(part) + text[end:], text)
+    doc = _parse(text)
+    change(doc)
     return _dump(doc, text)
+
+
+def _vehicle_region(text: str, vehicle_id: str | None,
+                    with_previous: bool = False) -> Region | None:
+    """The vehicle's lines (with the one before, or the last vehicle's when id is None)."""
+    starts = [m.start() for m in _VEHICLE_HEADER.finditer(text)]
+    if not starts:
+        return None
+    ids = [_id_after(text, s) for s in starts]
+    if vehicle_id is None:
+        index = len(starts) - 1
+    elif ids.count(vehicle_id) == 1:
+        index = ids.index(vehicle_id)
+    else:
+        return None
+    first = index - 1 if with_previous else index
+    if first < 0:
+        return None
+    end = starts[index + 1] if index + 1 < len(starts) else len(text)
+    want = ids[first:index + 1]
+
+    def expected(part: TOMLDocument) -> bool:
+        vehicles = part.get("vehicles")
+        return isinstance(vehicles, AoT) and [t.get("id") for t in vehicles] == want
+
+    return starts[first], end, expected
+
+
+def _id_after(text: str, start: int) -> str | None:
+    """The id of the [[vehicles]] table whose header is at `start` (None if not found)."""
+    line_end = text.find("\n", start)
+    nxt = _ANY_HEADER.search(text, line_end + 1) if line_end >= 0 else None
+    stop = nxt.start() if nxt else len(text)
+    hit = _ID_LINE.search(text, line_end + 1 if line_end >= 0 else len(text), stop)
+    if hit is None:
+        return None
+    try:
+        value = tomllib.loads(hit.group(0).strip()).get("id")
+    except tomllib.TOMLDecodeError:
+        return None
+    return value if isinstance(value, str) else None
+
+
+def _engine_region(text: str, profile_id: str) -> Region | None:
+    """The profile's table, or for a new profile the last profile's (it goes after it)."""
+    found = [(m.start(), _key(m.group("id"))) for m in _ENGINE_HEADER.finditer(text)]
+    ids = [pid for _, pid in found]
+    if not found or len(set(ids)) != len(ids):
+        return None
+    index = ids.index(profile_id) if profile_id in ids else len(found) - 1
+    start = found[index][0]
+    line_end = text.find("\n", start)
+    nxt = _ANY_HEADER.search(text, line_end + 1) if line_end >= 0 else None
+    end = nxt.start() if nxt else len(text)
+
+    def expected(part: TOMLDocument) -> bool:
+        engines = part.get("engines")
+        return set(part) == {"engines"} and isinstance(engines, Table) and \
+            list(engines) == [ids[index]]
+
+    return start, end, expected
+
+
+def _key(raw: str) -> str | None:
+    try:
+        return next(iter(tomllib.loads(f"{raw} = 0")))
+    except tomllib.TOMLDecodeError:
+        return None
 
 
 # -- finding things ---------------------------------------------------------------------------

@@ -251,3 +251,48 @@ def test_windows_line_ends_stay_windows():
 def test_bad_toml_is_a_planner_error():
     with pytest.raises(PlannerError):
         edit.add_reading("schema = = 1", "A", D(2020, 1, 1), 1)
+
+
+# -- editing only the region an edit is about -------------------------------------------------
+
+IDS = [v["id"] for v in DATA["vehicles"]]
+
+
+def every_edit(text: str):
+    """(name, thunk) for every kind of edit on every vehicle and profile of the example."""
+    for vid in IDS:
+        yield f"reading {vid}", lambda v=vid: edit.add_reading(text, v, D(2027, 1, 1), 4_000_000)
+        yield f"job {vid}", lambda v=vid: edit.add_belt_job(text, v, JOB)
+        yield f"edit {vid}", lambda v=vid: edit.edit_vehicle(text, v, {"label": "x", "notes": "y"})
+        yield f"delete {vid}", lambda v=vid: edit.delete_vehicle(text, v)
+    yield "add vehicle", lambda: edit.add_vehicle(text, NEW_VEHICLE)
+    for pid in DATA["engines"]:
+        yield f"profile {pid}", lambda p=pid: edit.set_engine(text, p, {"labour_hours": 9.0})
+    yield "new profile", lambda: edit.set_engine(text, "zz9", {"drive": "chain"})
+
+
+@pytest.mark.parametrize("text", [TEXT, TEXT.replace("\n", "\r\n")], ids=["lf", "crlf"])
+def test_region_edits_equal_whole_file_edits(monkeypatch, text):
+    sliced = {name: run() for name, run in every_edit(text)}
+    monkeypatch.setattr(edit, "SLICING", False)
+    for name, run in every_edit(text):
+        assert sliced[name] == run(), name
+
+
+def test_a_region_edit_parses_only_the_region(monkeypatch):
+    seen = []
+    real = edit.tomlkit.parse
+    monkeypatch.setattr(edit.tomlkit, "parse", lambda s: seen.append(len(s)) or real(s))
+    edit.add_reading(TEXT, "KL-09", D(2027, 1, 1), 170000)
+    assert seen and max(seen) < len(TEXT) / 10
+
+
+def test_odd_layouts_fall_back_to_the_whole_file():
+    # Two vehicles with the same id, and a header-like line inside a multi-line string.
+    text = ('[[vehicles]]\nid = "A"\ndrive = "chain"\nin_service = 2020-01-01\n'
+            'notes = """\n[[vehicles]]\nid = "B"\n"""\n'
+            '[[vehicles]]\nid = "B"\ndrive = "chain"\nin_service = 2020-01-01\n')
+    new = edit.add_reading(text, "B", D(2021, 1, 1), 5)
+    data = tomllib.loads(new)
+    assert data["vehicles"][1]["readings"] == [{"date": D(2021, 1, 1), "odometer": 5}]
+    assert data["vehicles"][0]["notes"] == '[[vehicles]]\nid = "B"\n'

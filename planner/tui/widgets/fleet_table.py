@@ -43,17 +43,29 @@ class FleetTable(DataTable):
     # -- data -----------------------------------------------------------------------------
     def set_records(self, records: Sequence[dict[str, Any]],
                     table_columns: Sequence[tuple[str, str]]) -> None:
-        """New plan: rebuild the cell cache, then show it in the current view."""
+        """New plan: cells are rebuilt only for the vehicles whose record changed."""
+        old = {r["id"]: r for r in self.records}
         self.records = list(records)
-        self.all_columns = cols.columns_for(table_columns, self.records)
-        self._cells = {
-            r["id"]: {c.field: cell for c, cell in
-                      zip(self.all_columns, cols.row_cells(r, self.all_columns), strict=True)}
-            for r in self.records
-        }
-        self._widths = cols.natural_widths(self.all_columns, self._cells.values())
-        self._fitted_width = -1
-        self._refit(force=True)
+        columns = cols.columns_for(table_columns, self.records)
+        same_columns = columns == self.all_columns
+        self.all_columns = columns
+        cells: dict[str, dict[str, Text]] = {}
+        changed = []
+        for rec in self.records:
+            vid = rec["id"]
+            if same_columns and vid in self._cells and old.get(vid) == rec:
+                cells[vid] = self._cells[vid]
+                continue
+            cells[vid] = {c.field: text for c, text in
+                          zip(columns, cols.row_cells(rec, columns), strict=True)}
+            changed.append(vid)
+        self._cells = cells
+        widths = cols.natural_widths(columns, cells.values())
+        if not same_columns or widths != self._widths or not self.shown:
+            self._widths = widths
+            self._refit(force=True)
+        else:
+            self._relist(changed)
 
     def set_view(self, view: View) -> None:
         self.view = view
@@ -102,17 +114,34 @@ class FleetTable(DataTable):
                 words = f"{words} {arrow}" if not col.right else f"{arrow} {words}"
         return Text(words, justify="right" if col.right else "left", style=style)
 
-    def _relist(self) -> None:
-        """Re-list the cached rows for the current view, keeping the cursor's vehicle."""
+    def _relist(self, changed: Sequence[str] = ()) -> None:
+        """Re-list the cached rows for the current view, keeping the cursor's vehicle.
+
+        The same rows in the same order only get their `changed` cells replaced; a new order
+        of the same rows is a DataTable.sort; only a new set of rows (a filter) is re-added.
+        Nothing is re-planned or re-rendered here.
+        """
         keep = self.current_id
+        before = [r["id"] for r in self.listed]
         self.listed = arrange(self.records, self.view)
-        self.clear()
         for col in self.shown:
             self.columns[col.field].label = self._heading(col)  # type: ignore[index]
+        ids = [r["id"] for r in self.listed]
         fields = [c.field for c in self.shown]
-        for rec in self.listed:
-            cells = self._cells[rec["id"]]
-            self.add_row(*(cells[f] for f in fields), key=rec["id"])
+        if ids and self.row_count == len(ids) and sorted(before) == sorted(ids):
+            for vid in changed:
+                if vid in self.rows:
+                    for name in fields:
+                        self.update_cell(vid, name, self._cells[vid][name])
+            if ids != before:
+                order = {vid: k for k, vid in enumerate(ids)}
+                self.sort("id", key=lambda cell: order[cell.plain])
+            self.refresh()
+        else:
+            self.clear()
+            for vid in ids:
+                cells = self._cells[vid]
+                self.add_row(*(cells[f] for f in fields), key=vid)
         if keep is not None:
             self.select_id(keep)
 
