@@ -8,6 +8,8 @@ follow ends the scan, and `line_of` then falls back to the nearest located ances
 
 from __future__ import annotations
 
+import tomllib
+
 from planner.errors import Path
 
 _BARE = set("ABCDEFGHIJKLMNOPQRSTUVWXYZabcdefghijklmnopqrstuvwxyz0123456789_-")
@@ -79,7 +81,13 @@ class _Scanner:
                 raise _Stop
             j += 2 if quote == '"' and s[j] == "\\" else 1
         self.i = j + 1
-        return s[i + 1 : j]
+        body = s[i + 1 : j]
+        if quote == '"' and "\\" in body:  # a key like "a\"b": the data path holds it unescaped
+            try:
+                return tomllib.loads(f"x = {s[i : j + 1]}")["x"]
+            except tomllib.TOMLDecodeError:
+                raise _Stop from None
+        return body
 
     def key(self) -> list[str]:
         parts = []
@@ -159,6 +167,7 @@ class _Scanner:
             path = path + (name,)
             last = k == len(names) - 1
             if last and array:
+                self.mark(path, start)  # the array itself: where its first element starts
                 count = self.tables_seen.get(path, 0)
                 self.tables_seen[path] = count + 1
                 path = path + (count,)
