@@ -204,13 +204,18 @@ def odometer_points(vehicle: Vehicle, as_of: dt.date) -> list[tuple[dt.date, flo
 
 def least_squares_slope(points: list[tuple[dt.date, float]]) -> float:
     """Ordinary least-squares slope of odometer on day number (distance per day)."""
-    xs = [p[0].toordinal() for p in points]
-    ys = [p[1] for p in points]
-    mx = sum(xs) / len(xs)
-    my = sum(ys) / len(ys)
-    sxx = sum((x - mx) ** 2 for x in xs)
-    sxy = sum((x - mx) * (y - my) for x, y in zip(xs, ys, strict=True))
-    return sxy / sxx
+    # One pass, offsets from the first point keep the sums small (this runs for every vehicle).
+    x0, y0 = points[0][0].toordinal(), points[0][1]
+    n = len(points)
+    sx = sy = sxx = sxy = 0.0
+    for day, odo in points:
+        x = day.toordinal() - x0
+        y = odo - y0
+        sx += x
+        sy += y
+        sxx += x * x
+        sxy += x * y
+    return (n * sxy - sx * sy) / (n * sxx - sx * sx)
 
 
 def _spans(points: list[tuple[dt.date, float]]) -> bool:
