@@ -64,7 +64,8 @@ class BeltplanApp(EditActions, FileActions, App[None], inherit_bindings=False):
 
     def show_title(self, bar: TitleBar) -> None:
         s = self.session
-        bar.show(s.name, str(s.path), len(s.history), s.dirty, loaded=s.ok)
+        bar.show(s.name if s.ok else str(s.path), str(s.path), len(s.history), s.dirty,
+                 loaded=s.ok)
 
     def refresh_views(self) -> None:
         """The text or the date changed: every open view redraws from the session."""

@@ -40,7 +40,7 @@ class EditActions:
             self.say(err.render(), "error")
             return
         self.refresh_views()
-        self.say(f"{what}. Not saved yet: ctrl+s saves, u undoes.")
+        self.say(f"{what} (not saved yet).")
 
     def _form(self: BeltplanApp, spec: Any, what: str) -> None:
         self.push_screen(FormScreen(spec), lambda text: self.apply_edit(text, what))

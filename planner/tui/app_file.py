@@ -20,8 +20,9 @@ class FileActions:
     """Mixed into `BeltplanApp`."""
 
     def _changes(self: BeltplanApp) -> str:
+        """`1 change` / `3 changes` / `changes` (after undoing past a save)."""
         n = len(self.session.history)
-        return f"{n} unsaved change{'s' if n != 1 else ''}" if n else "unsaved changes"
+        return f"{n} change{'s' if n != 1 else ''}" if n else "changes"
 
     def save_now(self: BeltplanApp, then_quit: bool = False) -> bool:
         """Save; on refusal explain and offer the ways out. True when saved."""
@@ -45,7 +46,9 @@ class FileActions:
         session = self.session
         question = Text(f"{session.path} changed on disk since it was read (another program "
                         "or person saved it). Nothing was saved and nothing is lost: your "
-                        f"{self._changes()} are still here.\n\n", style="")
+                        f"{self._changes()} "
+                        f"{'stays' if len(session.history) == 1 else 'stay'} here until you "
+                        "choose.\n\n", style="")
         question.append("Keep a copy writes your version beside it as "
                         f"{session.path.stem}.mine{session.path.suffix}, to compare. "
                         "Reload reads the file on disk and drops your changes.")
@@ -61,7 +64,7 @@ class FileActions:
             elif answer == "reload":
                 self.call_later(self.reload_now)
 
-        self.say(f"Not saved: {session.path} changed on disk.", "error")
+        self.last_message = f"Not saved: {session.path} changed on disk."  # the dialog says so
         self.push_screen(AskDialog("File changed on disk", question,
                                    [("keep", "Keep editing", "primary"),
                                     ("copy", "Keep a copy", "default"),
@@ -88,8 +91,8 @@ class FileActions:
             if answer == "reload":
                 self.call_later(self.reload_now)
 
-        self.push_screen(AskDialog("Reload from disk", f"Reading the file again drops your "
-                                   f"{self._changes()}.",
+        self.push_screen(AskDialog("Reload from disk", "Reading the file again drops your "
+                                   f"{self._changes()} not saved yet.",
                                    [("keep", "Keep my changes", "primary"),
                                     ("reload", "Reload", "warning")]), done)
 
@@ -117,8 +120,9 @@ class FileActions:
             elif answer == "discard":
                 self.exit()
 
-        self.push_screen(AskDialog("Quit", f"You have {self._changes()} not saved to "
-                                   f"{self.session.path}.",
+        self.push_screen(AskDialog("Quit", f"Your {self._changes()} to {self.session.path} "
+                                   "are not saved yet." if len(self.session.history) != 1 else
+                                   f"Your change to {self.session.path} is not saved yet.",
                                    [("cancel", "Keep working", "primary"),
                                     ("save", "Save and quit", "success"),
                                     ("discard", "Quit without saving", "error")]), done)

@@ -57,7 +57,7 @@ def reading_form(session: Session, plan: VehiclePlan) -> FormSpec:
         intro.append(f"\nlast odometer value {use.last_odometer:,.0f} {unit} on "
                      f"{use.last_date}", style=DIM)
     if use.est_odometer is not None:
-        intro.append(f"; estimate on {session.as_of}: {use.est_odometer:,.0f} {unit}", style=DIM)
+        intro.append(f"\nestimate on {session.as_of}: {use.est_odometer:,.0f} {unit}", style=DIM)
 
     def submit(v: dict[str, Any]) -> str:
         return _checked(session, edit.add_reading(session.text, plan.id, v["date"],
@@ -65,7 +65,7 @@ def reading_form(session: Session, plan: VehiclePlan) -> FormSpec:
 
     return FormSpec("Add an odometer reading", [
         F("date", "date", "date", session.as_of, required=True),
-        F("odometer", f"odometer ({unit})", "distance", required=True,
+        F("odometer", f"odometer, {unit}", "distance", required=True,
           help="as shown on the instrument; odometers only go forward"),
     ], submit, intro=intro, subject=plan.id)
 
@@ -80,7 +80,7 @@ def job_form(session: Session, plan: VehiclePlan) -> FormSpec:
 
     return FormSpec("Record a belt job", [
         F("date", "date", "date", session.as_of, required=True),
-        F("odometer", f"odometer ({unit})", "distance", required=True,
+        F("odometer", f"odometer, {unit}", "distance", required=True,
           placeholder=f"about {est:,.0f}" if est is not None else ""),
         F("reason", "reason", "choice", "scheduled", required=True,
           choices=choices(_words(JobReason)),
@@ -98,10 +98,10 @@ VEHICLE_FIELDS = (
     ("belt_history", "belt history", "choice"), ("first_registered", "first registered", "date"),
     ("fuel", "fuel", "choice"), ("drive", "drive", "choice"),
     ("interference", "interference", "choice"),
-    ("interval_distance", "interval distance", "distance"),
-    ("interval_months", "interval months", "months"),
-    ("severe_interval_distance", "severe distance", "distance"),
-    ("severe_interval_months", "severe months", "months"),
+    ("interval_distance", "interval", "distance"),
+    ("interval_months", "interval, months", "months"),
+    ("severe_interval_distance", "severe interval", "distance"),
+    ("severe_interval_months", "severe interval, months", "months"),
     ("failure_cost", "failure cost", "number"), ("notes", "notes", "text"),
 )
 _ENUM_CHOICES = {"duty": Duty, "belt_history": BeltHistory, "fuel": Fuel, "drive": Drive,
@@ -124,7 +124,7 @@ def vehicle_form(session: Session, vehicle: Vehicle | None) -> FormSpec:
         if vehicle is None and name in ("duty", "belt_history"):
             value = Vehicle.model_fields[name].default
         if kind == "distance":
-            label = f"{label} ({unit})"
+            label = f"{label}, {unit}"
         opts = engines if name == "engine" else (
             choices(_words(_ENUM_CHOICES[name])) if kind == "choice" else ())
         fields.append(F(name, label, kind, value, required=name in ("id", "in_service"),
@@ -148,11 +148,11 @@ def vehicle_form(session: Session, vehicle: Vehicle | None) -> FormSpec:
 ENGINE_FIELDS = (
     ("description", "description", "text"), ("fuel", "fuel", "choice"),
     ("drive", "drive", "choice"), ("interference", "interference", "choice"),
-    ("interval_distance", "interval distance", "distance"),
-    ("interval_months", "interval months", "months"),
-    ("severe_interval_distance", "severe distance", "distance"),
-    ("severe_interval_months", "severe months", "months"),
-    ("labour_hours", "labour hours", "number"), ("parts", "parts (comma separated)", "list"),
+    ("interval_distance", "interval", "distance"),
+    ("interval_months", "interval, months", "months"),
+    ("severe_interval_distance", "severe interval", "distance"),
+    ("severe_interval_months", "severe interval, months", "months"),
+    ("labour_hours", "labour hours", "number"), ("parts", "parts (a, b, …)", "list"),
     ("parts_cost", "parts cost", "number"), ("failure_cost", "failure cost", "number"),
 )
 
@@ -168,7 +168,7 @@ def engine_form(session: Session, profile_id: str | None) -> FormSpec:
     for name, label, kind in ENGINE_FIELDS:
         value = getattr(profile, name) if profile is not None else None
         if kind == "distance":
-            label = f"{label} ({unit})"
+            label = f"{label}, {unit}"
         fields.append(F(name, label, kind, value, choices=choices(
             _words(_ENUM_CHOICES[name])) if kind == "choice" else ()))
 

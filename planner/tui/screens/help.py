@@ -62,7 +62,7 @@ class HelpScreen(Popup[None]):
         with Vertical(classes="panel") as panel:
             panel.border_title = "Keys"
             panel.border_subtitle = "esc closes"
-            with VerticalScroll(classes="scroll"):
+            with VerticalScroll(classes="scroll -full"):
                 yield Static(Group(Text("The same commands are in the command palette "
                                         "(ctrl+p). The last column says where each works."),
                                    *keys_tables(), *legend()),
@@ -73,18 +73,14 @@ def about_text(model_line: str | None) -> Text:
     text = literal("beltplan", ACCENT)
     text.append(f" {__version__}: a timing-belt service and failure-risk planner.\n\n")
     text.append("Cautions\n", style="bold underline")
+    text.append(export.CAUTION + "\n")
     for line in (
-        "The maker's schedule and service information come first: this plan is a planning "
-        "aid, not a diagnosis.",
-        "Cam-drive work belongs to a qualified technician following the maker's procedure "
-        "and local regulations.",
-        "A vehicle past its interval is at risk of a sudden engine stop, without warning; "
-        "at speed, engine-driven power steering and brake assistance go with it.",
-        "Interference not known is planned as interference, and diesels almost always are.",
+        "At speed a drive failure also takes engine-driven power steering and brake "
+        "assistance: a safety matter, not only a cost.",
+        "Interference not recorded is planned and costed as interference until someone "
+        "checks it; diesels almost always are interference engines.",
     ):
         text.append("• " + line + "\n")
-    text.append("\n")
-    text.append(export.CAUTION + "\n", style="italic")
     if model_line:
         text.append("\nRisk figures\n", style="bold underline")
         text.append(model_line + "\n")
@@ -106,5 +102,5 @@ class AboutScreen(Popup[None]):
         with Vertical(classes="panel") as panel:
             panel.border_title = "About beltplan"
             panel.border_subtitle = "esc closes"
-            with VerticalScroll(classes="scroll"):
+            with VerticalScroll(classes="scroll -full"):
                 yield Static(about_text(self.model_line), id="about-text", markup=False)

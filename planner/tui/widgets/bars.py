@@ -35,15 +35,15 @@ class TitleBar(Horizontal):
         left = literal(" beltplan ", ACCENT)
         left.append("▸ ", style=DIM)
         left.append(literal(name, "bold"))
-        left.append(f"  {file}", style=DIM)
+        if file != name:
+            left.append(f"  {file}", style=DIM)
         if extra:
             left.append(f"  {extra}")
         self.query_one("#title-left", Static).update(left)
         right = self.query_one("#title-right", Static)
         if dirty:
             word = "change" if changes == 1 else "changes"
-            right.update(Text(f"● unsaved: {changes} {word} (ctrl+s saves)" if changes else
-                              "● unsaved (ctrl+s saves)"))
+            right.update(Text(f"● {changes} unsaved {word}" if changes else "● unsaved"))
         elif not loaded:
             right.update(Text("not loaded", style=DIM))
         else:
