@@ -199,7 +199,9 @@ async def test_help_lists_every_key_from_the_action_table():
         for action in ACTIONS:
             assert action.help.split("(")[0].split(":")[0].strip()[:30] in " ".join(
                 words.split()), action.id
-        await pilot.press("escape")
+        await pilot.press("q")  # q (or esc, or ?) closes help; it does not quit
+        await until(pilot, lambda: screen_name(app) == "MainScreen")
+        assert app.is_running
         await pilot.press("i")
         await until(pilot, lambda: screen_name(app) == "AboutScreen")
         about = " ".join(text_of(app.screen.query_one("#about-text")).split())

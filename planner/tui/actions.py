@@ -12,7 +12,7 @@ from dataclasses import dataclass
 
 from textual.binding import Binding
 
-MAIN, DETAIL, ERROR, FORM = "main", "detail", "error", "form"
+MAIN, DETAIL, ERROR, FORM, HELP = "main", "detail", "error", "form", "help"
 ANY_VIEW = (MAIN, DETAIL, ERROR)
 LOADED = (MAIN, DETAIL)
 
@@ -84,7 +84,9 @@ ACTIONS: tuple[Action, ...] = (
     Action("apply", "ctrl+o", "apply", "Apply the form (enter in a text field does the same)",
            "Forms and dialogs", (FORM,), target="screen"),
     Action("cancel", "escape", "cancel", "Close the form or dialog without changing anything",
-           "Forms and dialogs", (FORM,), target="screen"),
+           "Forms and dialogs", (FORM, HELP), target="screen"),
+    Action("close", "q,question_mark", "close", "Close the help or about view", "Forms and dialogs",
+           (HELP,), target="screen"),
 )
 
 BY_ID: dict[str, Action] = {a.id: a for a in ACTIONS}
@@ -107,13 +109,14 @@ def for_scope(scope: str) -> list[Action]:
     return [a for a in ACTIONS if scope in a.scopes]
 
 
-def bindings(target: str) -> list[Binding]:
-    """Bindings for the app (`target="app"`) or for forms and dialogs (`"screen"`).
+def bindings(target: str, scope: str | None = None) -> list[Binding]:
+    """Bindings for the app (`target="app"`) or for the pop-ups of `scope` (`"screen"`).
 
     The palette's own key is left to Textual (`App.COMMAND_PALETTE_BINDING`, set from here).
     """
     return [Binding(a.keys, a.id, a.title, show=False, priority=a.priority)
-            for a in ACTIONS if a.target == target and a.id != "command_palette"]
+            for a in ACTIONS if a.target == target and a.id != "command_palette"
+            and (scope is None or scope in a.scopes)]
 
 
 def scope_of(screen: object) -> str | None:

@@ -10,7 +10,7 @@ from textual.containers import Vertical, VerticalScroll
 from textual.widgets import Static
 
 from planner import __version__, export
-from planner.tui.actions import ACTIONS, key_label
+from planner.tui.actions import ACTIONS, HELP, bindings, key_label
 from planner.tui.look import (
     ACCENT,
     CONSEQUENCE_SYMBOL,
@@ -23,7 +23,18 @@ from planner.tui.look import (
 )
 from planner.tui.screens.modal import Popup
 
-VIEW_NAMES = {"main": "list", "detail": "detail", "error": "error view", "form": "pop-ups"}
+VIEW_NAMES = {"main": "list", "detail": "detail", "error": "error view", "form": "pop-ups",
+              "help": "help, about"}
+
+
+class HelpPopup(Popup[None]):
+    """Help and about: esc, q or ? close them."""
+
+    SCOPE = HELP
+    BINDINGS = bindings("screen", HELP)
+
+    def action_close(self) -> None:
+        self.dismiss(None)
 
 
 def keys_tables() -> list[RenderableType]:
@@ -55,13 +66,13 @@ def legend() -> list[RenderableType]:
     return [literal("\nSymbols", "bold underline"), table]
 
 
-class HelpScreen(Popup[None]):
+class HelpScreen(HelpPopup):
     """Every key of every view."""
 
     def compose(self) -> ComposeResult:
         with Vertical(classes="panel") as panel:
             panel.border_title = "Keys"
-            panel.border_subtitle = "esc closes"
+            panel.border_subtitle = "esc, q or ? closes"
             with VerticalScroll(classes="scroll -full"):
                 yield Static(Group(Text("The same commands are in the command palette "
                                         "(ctrl+p). The last column says where each works."),
@@ -91,7 +102,7 @@ def about_text(model_line: str | None) -> Text:
     return text
 
 
-class AboutScreen(Popup[None]):
+class AboutScreen(HelpPopup):
     """What the planner is, its assumptions, and the cautions."""
 
     def __init__(self, model_line: str | None) -> None:
@@ -101,6 +112,6 @@ class AboutScreen(Popup[None]):
     def compose(self) -> ComposeResult:
         with Vertical(classes="panel") as panel:
             panel.border_title = "About beltplan"
-            panel.border_subtitle = "esc closes"
+            panel.border_subtitle = "esc, q or ? closes"
             with VerticalScroll(classes="scroll -full"):
                 yield Static(about_text(self.model_line), id="about-text", markup=False)

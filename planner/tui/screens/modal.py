@@ -16,7 +16,7 @@ class Popup(ModalScreen[T]):
     """Escape cancels (dismiss with None); `apply` is the form's or dialog's own."""
 
     SCOPE = FORM
-    BINDINGS = bindings("screen")
+    BINDINGS = bindings("screen", FORM)
     CSS_PATH = STYLES / "popup.tcss"
 
     def action_cancel(self) -> None:
