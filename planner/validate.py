@@ -11,6 +11,7 @@ import datetime as dt
 import difflib
 import functools
 import math
+import re
 import types
 import typing
 from collections.abc import Iterable
@@ -318,6 +319,10 @@ def _type_problems(value: Any, kind: Kind, path: Path, vehicle: str | None,
             out.append(_wrong_type(value, kind, path, vehicle))
         elif type(value) is float and not math.isfinite(value):
             out.append(_not_finite(value, kind, path, vehicle))
+        elif type(value) is str and not value.isprintable():
+            hit = _CONTROL.search(value)
+            if hit:
+                out.append(_control_character(value, hit.start(), path, vehicle))
         return
     tag, inner = kind  # a container: a wrong shape is pydantic's to report
     if tag == "table" and type(value) is dict:
@@ -328,14 +333,35 @@ def _type_problems(value: Any, kind: Kind, path: Path, vehicle: str | None,
                 continue
             fits = check[1]
             if fits is None or type(item) not in fits or (
-                    type(item) is float and not math.isfinite(item)):
+                    type(item) is float and not math.isfinite(item)) or (
+                    type(item) is str and not item.isprintable()):
                 _type_problems(item, check[0], path + (key,), vehicle, out)
     elif tag == "array" and type(value) is list:
         for i, item in enumerate(value):
             _type_problems(item, inner, path + (i,), vehicle, out)
     elif tag == "tables" and type(value) is dict:
         for key, item in value.items():
+            hit = None if key.isprintable() else _CONTROL.search(key)
+            if hit:  # a table's name is shown too, e.g. an engine profile's id
+                out.append(_control_character(key, hit.start(), path + (key,), vehicle))
             _type_problems(item, inner, path + (key,), vehicle, out)
+
+
+# Control characters (Unicode category Cc, but tab and line ends) reach the file only as
+# escapes (\u001b, \b …; the TOML 1.0 spec forbids them raw) and would reach the terminal, a CSV
+# or a job sheet as commands: an escape sequence recolours or rewrites the screen.
+_CONTROL = re.compile(r"[\x00-\x08\x0b\x0c\x0e-\x1f\x7f-\x9f]")
+_CONTROL_NAMES = {0x00: "NUL", 0x07: "bell", 0x08: "backspace", 0x0C: "form feed",
+                  0x1B: "escape", 0x7F: "delete"}
+
+
+def _control_character(value: str, at: int, path: Path, vehicle: str | None) -> Problem:
+    code = ord(value[at])
+    name = f"U+{code:04X}" + (f" ({_CONTROL_NAMES[code]})" if code in _CONTROL_NAMES else "")
+    return Problem(f"text holds a control character {name} at position {at + 1}", path,
+                   hint="remove it (in the file it is written as an escape such as "
+                   f"\\u{code:04x}): control characters would be sent to the terminal or the "
+                   "export as commands", vehicle=vehicle)
 
 
 def _not_finite(value: float, kind: str, path: Path, vehicle: str | None) -> Problem:
