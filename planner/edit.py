@@ -56,16 +56,17 @@ def add_reading(text: str, vehicle_id: str, date: dt.date, odometer: float) -> s
         readings = vehicle.get("readings")
         if readings is None:
             fresh = tomlkit.array()
-            fresh.add_line(reading, indent="  ")
-            fresh.add_line(indent="")
+            if isinstance(vehicle, InlineTable):  # a vehicle on one line keeps to one line
+                fresh.append(reading)
+            else:
+                fresh.add_line(reading, indent="  ")
+                fresh.add_line(indent="")
             vehicle["readings"] = fresh
         elif not isinstance(readings, Array):
             raise PlannerError(f"vehicle {vehicle_id}: readings is not an array",
                                "Fix the file by hand, then reload.")
-        elif _is_multiline(readings):
-            readings.add_line(reading, indent=_indent_of(readings))
         else:
-            readings.append(reading)
+            _append_inline(readings, reading)
 
     return _edit(text, change, _vehicle_region(text, vehicle_id))
 
@@ -76,7 +77,13 @@ def add_belt_job(text: str, vehicle_id: str, job: Values) -> str:
         vehicle = _vehicle(doc, vehicle_id)
         table = _table(job, JOB_KEYS)
         jobs = vehicle.get("belt_jobs")
-        if jobs is None:
+        if isinstance(jobs, Array) or (jobs is None and isinstance(vehicle, InlineTable)):
+            inline = _inline({k: v for k, v in table.unwrap().items()})
+            if jobs is None:
+                vehicle["belt_jobs"] = tomlkit.array()
+                jobs = vehicle["belt_jobs"]
+            _append_inline(jobs, inline)
+        elif jobs is None:
             # The vehicle's own trailing blank lines and comments go below its first job.
             trailer = _pop_trailer(vehicle)
             vehicle["belt_jobs"] = tomlkit.aot()
@@ -105,6 +112,9 @@ def add_vehicle(text: str, values: Values) -> str:
         elif isinstance(vehicles, AoT):
             previous = _last_table(vehicles[-1]) if len(vehicles) else None
             vehicles.append(table)
+        elif isinstance(vehicles, Array):  # written inline: the new one is inline too
+            _append_inline(vehicles, _inline(table.unwrap()))
+            return
         else:
             raise PlannerError("vehicles is not an array of tables",
                                "Write each vehicle as a [[vehicles]] table, then reload.")
@@ -135,6 +145,9 @@ def delete_vehicle(text: str, vehicle_id: str) -> str:
     def change(doc: TOMLDocument) -> None:
         vehicles = doc.get("vehicles")
         index = _vehicle_index(doc, vehicle_id)
+        if isinstance(vehicles, Array):  # written inline
+            del vehicles[index]
+            return
         assert isinstance(vehicles, AoT)
         trailer = _pop_trailer(_last_table(vehicles[index]))
         if index > 0:
@@ -289,20 +302,29 @@ def _parse(text: str) -> TOMLDocument:
 
 
 def _vehicle_index(doc: TOMLDocument, vehicle_id: str) -> int:
+    """Where the vehicle is in `[[vehicles]]` tables, or in `vehicles = [{ … }]` written inline."""
     vehicles = doc.get("vehicles")
-    if isinstance(vehicles, AoT):
+    if isinstance(vehicles, (AoT, Array)):
         for index, table in enumerate(vehicles):
-            if table.get("id") == vehicle_id:
+            if isinstance(table, (Table, InlineTable)) and table.get("id") == vehicle_id:
                 return index
     raise PlannerError(f"no vehicle {vehicle_id!r} in the file",
                        "Reload the file: it may have changed.")
 
 
-def _vehicle(doc: TOMLDocument, vehicle_id: str) -> Table:
+def _vehicle(doc: TOMLDocument, vehicle_id: str) -> Table | InlineTable:
     vehicles = doc["vehicles"] if "vehicles" in doc else None
     index = _vehicle_index(doc, vehicle_id)
-    assert isinstance(vehicles, AoT)
+    assert isinstance(vehicles, (AoT, Array))
     return vehicles[index]
+
+
+def _append_inline(array: Array, value: InlineTable) -> None:
+    """Append to an array written on one line or one element a line, in its own way."""
+    if _is_multiline(array):
+        array.add_line(value, indent=_indent_of(array))
+    else:
+        array.append(value)
 
 
 def _last_table(node: Any) -> Any:

@@ -296,3 +296,32 @@ def test_odd_layouts_fall_back_to_the_whole_file():
     data = tomllib.loads(new)
     assert data["vehicles"][1]["readings"] == [{"date": D(2021, 1, 1), "odometer": 5}]
     assert data["vehicles"][0]["notes"] == '[[vehicles]]\nid = "B"\n'
+
+
+# -- vehicles written inline: vehicles = [{ … }] ----------------------------------------------
+
+INLINE = (
+    'schema = 1\nvehicles = [\n'
+    '    { id = "A", drive = "chain", in_service = 2020-01-01 },  # the yard pickup\n'
+    '    { id = "B", drive = "chain", in_service = 2021-01-01, '
+    'readings = [{ date = 2021-06-01, odometer = 900 }] },\n]\n'
+)
+
+
+def test_inline_vehicles_can_be_edited_too():
+    new = edit.add_reading(INLINE, "A", D(2021, 1, 1), 500)
+    new = edit.add_reading(new, "B", D(2022, 1, 1), 1500)
+    new = edit.add_belt_job(new, "A", {"date": D(2021, 2, 1), "odometer": 600,
+                                       "reason": "precaution", "notes": ""})
+    new = edit.edit_vehicle(new, "B", {"label": "van B"})
+    new = edit.add_vehicle(new, {"id": "C", "drive": "gear", "in_service": D(2022, 1, 1)})
+    data = tomllib.loads(new)
+    a, b, c = data["vehicles"]
+    assert a["readings"] == [{"date": D(2021, 1, 1), "odometer": 500}]
+    assert a["belt_jobs"] == [{"date": D(2021, 2, 1), "odometer": 600, "reason": "precaution"}]
+    assert b["readings"][-1] == {"date": D(2022, 1, 1), "odometer": 1500} and b["label"] == "van B"
+    assert c == {"id": "C", "drive": "gear", "in_service": D(2022, 1, 1)}
+    assert "# the yard pickup" in new
+    parse_fleet_text(new, "f.toml")
+    gone = edit.delete_vehicle(new, "B")
+    assert [v["id"] for v in tomllib.loads(gone)["vehicles"]] == ["A", "C"]
