@@ -146,9 +146,8 @@ def _parse(text: str, name: str) -> Fleet:
     if not data:
         raise PlannerError(
             f"{name} holds no fleet data",
-            "It is empty (or only comments). If it should hold your fleet, restore it from "
-            f"{name}{BACKUP_SUFFIX}, the copy kept at the last save; a new fleet file starts "
-            "with schema = 1 (see the README).",
+            "It is empty (or only comments): a new fleet file starts with schema = 1 (see the "
+            "README).",
         )
     try:
         return build_fleet(data)
@@ -249,7 +248,15 @@ def load_fleet(path: str | os.PathLike[str]) -> LoadedFleet:
     """Read, parse and validate a fleet file."""
     p = Path(path)
     text, raw, bom = read_text(p)
-    fleet = parse_fleet_text(text, str(p))
+    try:
+        fleet = parse_fleet_text(text, str(p))
+    except PlannerError as err:
+        backup = backup_path(p)
+        if err.title.endswith("holds no fleet data") and backup.is_file():
+            raise PlannerError(err.title, "It is empty (or only comments). The copy kept at "
+                               f"the last save is {backup}: if the fleet should be here, copy "
+                               "that back over it.") from None
+        raise
     return LoadedFleet(path=p, fleet=fleet, text=text, digest=digest_of(raw), bom=bom)
 
 

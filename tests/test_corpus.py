@@ -29,7 +29,7 @@ CORPUS = Path(__file__).resolve().parent / "corpus"
 BROKEN = CORPUS / "broken"
 ACCEPTED = CORPUS / "accepted"
 EXPECTED = tomllib.loads((CORPUS / "expected.toml").read_text(encoding="utf-8"))["broken"]
-BASE = BROKEN.parent / "accepted" / "no_schema.toml"  # the base fleet, minus its first key
+BASE = CORPUS / "base.toml"  # the valid fleet every corpus file is made from
 
 
 def corpus_file(name: str) -> Path:
@@ -114,6 +114,16 @@ def test_check_in_a_fresh_process(name):
     assert run.stdout == ""
 
 
+def test_an_emptied_file_points_to_its_backup(tmp_path, capsys):
+    """A file emptied by accident (a failed copy, a zero-byte sync) names the last save's copy."""
+    fleet = tmp_path / "fleet.toml"
+    fleet.write_text("")
+    (tmp_path / "fleet.toml.bak").write_bytes(COURIER.read_bytes())
+    code, _, err = run_cli(capsys, "check", str(fleet))
+    assert code == 2
+    assert f"The copy kept at the last save is {fleet}.bak" in err
+
+
 def test_deep_nesting_is_refused_however_deep_the_stack_already_is():
     """The nesting limit comes from the recursion limit: near it, the error must still be ours."""
     path = corpus_file("deep_nesting")
@@ -146,8 +156,8 @@ def test_a_bom_or_windows_line_ends_change_nothing():
     bom = load_fleet(ACCEPTED / "bom.toml")
     assert bom.bom and not bom.text.startswith("\ufeff")
     crlf = load_fleet(ACCEPTED / "crlf.toml")
-    # The same fleet apart from the schema line the base lacks (it defaults to 1).
     assert bom.fleet == plain and crlf.fleet == plain
+    assert load_fleet(ACCEPTED / "no_schema.toml").fleet == plain  # schema defaults to 1
 
 
 def test_missing_fleet_table_means_the_documented_defaults():
