@@ -17,7 +17,6 @@ from __future__ import annotations
 
 import datetime as dt
 import re
-import tomllib
 from collections.abc import Callable, Iterable, Mapping
 from enum import Enum
 from typing import Any
@@ -26,6 +25,7 @@ import tomlkit
 from tomlkit.items import AoT, Array, Comment, InlineTable, Item, Table, Whitespace
 from tomlkit.toml_document import TOMLDocument
 
+from planner.edit_regions import Region, engine_region, has_engine_tables, vehicle_region
 from planner.errors import PlannerError
 from planner.fleet import EngineProfile, Vehicle
 
@@ -68,7 +68,7 @@ def add_reading(text: str, vehicle_id: str, date: dt.date, odometer: float) -> s
         else:
             _append_inline(readings, reading)
 
-    return _edit(text, change, _vehicle_region(text, vehicle_id))
+    return _edit(text, change, vehicle_region(text, vehicle_id))
 
 
 def add_belt_job(text: str, vehicle_id: str, job: Values) -> str:
@@ -97,7 +97,7 @@ def add_belt_job(text: str, vehicle_id: str, job: Values) -> str:
             raise PlannerError(f"vehicle {vehicle_id}: belt_jobs is not an array of tables",
                                "Write each job as a [[vehicles.belt_jobs]] table, then reload.")
 
-    return _edit(text, change, _vehicle_region(text, vehicle_id))
+    return _edit(text, change, vehicle_region(text, vehicle_id))
 
 
 def add_vehicle(text: str, values: Values) -> str:
@@ -121,7 +121,7 @@ def add_vehicle(text: str, values: Values) -> str:
         if previous is not None:
             _share_trailer(previous, table, separate=True)
 
-    return _edit(text, change, _vehicle_region(text, None))
+    return _edit(text, change, vehicle_region(text, None))
 
 
 def edit_vehicle(text: str, vehicle_id: str, values: Values) -> str:
@@ -133,7 +133,7 @@ def edit_vehicle(text: str, vehicle_id: str, values: Values) -> str:
     def change(doc: TOMLDocument) -> None:
         _update(_vehicle(doc, vehicle_id), values, Vehicle.model_fields)
 
-    return _edit(text, change, _vehicle_region(text, vehicle_id))
+    return _edit(text, change, vehicle_region(text, vehicle_id))
 
 
 def delete_vehicle(text: str, vehicle_id: str) -> str:
@@ -162,7 +162,7 @@ def delete_vehicle(text: str, vehicle_id: str) -> str:
             _push_trailer(before, trailer)
 
     # The vehicle before it is edited too (it may receive comments): both in the region.
-    return _edit(text, change, _vehicle_region(text, vehicle_id, with_previous=True))
+    return _edit(text, change, vehicle_region(text, vehicle_id, with_previous=True))
 
 
 def set_engine(text: str, profile_id: str, values: Values) -> str:
@@ -185,27 +185,18 @@ def set_engine(text: str, profile_id: str, values: Values) -> str:
         if previous is not engines:
             _share_trailer(previous, table, separate=True)
 
-    if not _ENGINE_HEADER.search(text) and "engines" not in _parse(text):
+    if not has_engine_tables(text) and "engines" not in _parse(text):
         table = _table(values, ENGINE_KEYS)
         return _crlf(text + _engine_text(profile_id, table, text), text)
-    return _edit(text, change, _engine_region(text, profile_id))
+    return _edit(text, change, engine_region(text, profile_id))
 
 
 # -- editing only the part of the text an edit is about ---------------------------------------
 #
 # tomlkit reads a large file slowly (seconds for thousands of vehicles), so an edit parses only
-# the tables it touches: the text from the vehicle's [[vehicles]] line to the next one (or the
-# profile's [engines.<id>] table). The region is checked (it must parse, and hold exactly the
-# tables expected) and otherwise the whole text is used; the caller validates the result.
+# the tables it touches (found by `planner.edit_regions`); the whole text is the fallback.
 
 SLICING = True  # tests compare the result with and without it
-_VEHICLE_HEADER = re.compile(r"^[ \t]*\[\[[ \t]*vehicles[ \t]*\]\][ \t]*(#.*)?$", re.M)
-_ENGINE_HEADER = re.compile(r"^[ \t]*\[[ \t]*engines[ \t]*\.[ \t]*(?P<id>[A-Za-z0-9_-]+|"
-                            r"\"(?:[^\"\\\n]|\\.)*\"|'[^'\n]*')[ \t]*\][ \t]*(#.*)?$", re.M)
-_ANY_HEADER = re.compile(r"^[ \t]*\[", re.M)
-_ID_LINE = re.compile(r"^[ \t]*id[ \t]*=.*$", re.M)
-
-Region = tuple[int, int, Callable[[TOMLDocument], bool]]
 
 
 def _edit(text: str, change: Callable[[TOMLDocument], None], region: Region | None) -> str:
@@ -221,74 +212,6 @@ def _edit(text: str, change: Callable[[TOMLDocument], None], region: Region | No
     doc = _parse(text)
     change(doc)
     return _dump(doc, text)
-
-
-def _vehicle_region(text: str, vehicle_id: str | None,
-                    with_previous: bool = False) -> Region | None:
-    """The vehicle's lines (with the one before, or the last vehicle's when id is None)."""
-    starts = [m.start() for m in _VEHICLE_HEADER.finditer(text)]
-    if not starts:
-        return None
-    ids = [_id_after(text, s) for s in starts]
-    if vehicle_id is None:
-        index = len(starts) - 1
-    elif ids.count(vehicle_id) == 1:
-        index = ids.index(vehicle_id)
-    else:
-        return None
-    first = index - 1 if with_previous else index
-    if first < 0:
-        return None
-    end = starts[index + 1] if index + 1 < len(starts) else len(text)
-    want = ids[first:index + 1]
-
-    def expected(part: TOMLDocument) -> bool:
-        vehicles = part.get("vehicles")
-        return isinstance(vehicles, AoT) and [t.get("id") for t in vehicles] == want
-
-    return starts[first], end, expected
-
-
-def _id_after(text: str, start: int) -> str | None:
-    """The id of the [[vehicles]] table whose header is at `start` (None if not found)."""
-    line_end = text.find("\n", start)
-    nxt = _ANY_HEADER.search(text, line_end + 1) if line_end >= 0 else None
-    stop = nxt.start() if nxt else len(text)
-    hit = _ID_LINE.search(text, line_end + 1 if line_end >= 0 else len(text), stop)
-    if hit is None:
-        return None
-    try:
-        value = tomllib.loads(hit.group(0).strip()).get("id")
-    except tomllib.TOMLDecodeError:
-        return None
-    return value if isinstance(value, str) else None
-
-
-def _engine_region(text: str, profile_id: str) -> Region | None:
-    """The profile's table, or for a new profile the last profile's (it goes after it)."""
-    found = [(m.start(), _key(m.group("id"))) for m in _ENGINE_HEADER.finditer(text)]
-    ids = [pid for _, pid in found]
-    if not found or len(set(ids)) != len(ids):
-        return None
-    index = ids.index(profile_id) if profile_id in ids else len(found) - 1
-    start = found[index][0]
-    line_end = text.find("\n", start)
-    nxt = _ANY_HEADER.search(text, line_end + 1) if line_end >= 0 else None
-    end = nxt.start() if nxt else len(text)
-
-    def expected(part: TOMLDocument) -> bool:
-        engines = part.get("engines")
-        return set(part) == {"engines"} and isinstance(engines, Table) and \
-            list(engines) == [ids[index]]
-
-    return start, end, expected
-
-
-def _key(raw: str) -> str | None:
-    try:
-        return next(iter(tomllib.loads(f"{raw} = 0")))
-    except tomllib.TOMLDecodeError:
-        return None
 
 
 # -- finding things ---------------------------------------------------------------------------
