@@ -54,7 +54,8 @@ async def test_narrow_window_hides_columns_and_says_so_wide_shows_them():
         table = app.main_screen().table
         shown = [c.field for c in table.shown]
         assert shown[:1] == ["id"] and {"status", "consequence", "due_date"} <= set(shown)
-        assert table.hidden and "more column" in text_of(app.screen.query_one("#viewinfo"))
+        assert table.hidden and "columns if wider" in text_of(app.screen.query_one("#viewinfo"))
+        assert "risk assumed (i)" in text_of(app.screen.query_one("#viewinfo"))
         # The row line shows the highlighted vehicle's label and why.
         assert "Van 1, city rounds" in text_of(app.screen.query_one("#rowinfo"))
         assert sum(table.columns[c.field].get_render_width(table) for c in table.shown) <= 80

@@ -246,3 +246,31 @@ async def test_export_refuses_to_write_over_the_fleet_file(tmp_path):
         assert "refusing to write over the fleet file" in text_of(
             app.screen.query_one("#problems"))
     assert path.read_text() == original
+
+
+@sync
+async def test_the_newcomer_scenario_from_the_issue(tmp_path):
+    """Open, find the most urgent, read why, record its belt job, watch the status change,
+    save, quit, reopen: the job and every comment are still there."""
+    path = copy_example(tmp_path)
+    comments = comment_lines(path.read_text())
+    app = make_app(path)
+    async with app.run_test(size=SMALL) as pilot:
+        await opened(pilot)
+        urgent = listed_ids(app)[0]
+        await pilot.press("enter")
+        await until(pilot, lambda: screen_name(app) == "DetailScreen")
+        assert "limit decides" in text_of(app.screen.query_one("#d-notes"))
+        await record_job(pilot)
+        await until(pilot, lambda: "✓ ok" in text_of(app.screen.query_one("#d-heading")))
+        await pilot.press("escape", "ctrl+s")
+        await until(pilot, lambda: not app.session.dirty, what="saved")
+        await pilot.press("q")
+        await until(pilot, lambda: not app.is_running, what="quit without a question")
+    again = make_app(path)
+    async with again.run_test(size=SMALL) as pilot:
+        await opened(pilot)
+        plan = again.session.plan_of(urgent)
+        assert plan.status.value == "ok" and plan.install.date == dt.date(2026, 12, 7)
+        assert plan.vehicle.belt_jobs[-1].work == "belt kit, water pump"
+    assert comment_lines(path.read_text()) == comments

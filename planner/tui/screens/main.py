@@ -68,9 +68,14 @@ class MainScreen(Screen):
         session = self.beltapp.session
         self.query_one(SummaryLine).show(session.as_of, table.records, len(table.listed))
         info = Text(describe(table.view, table.heading_of()), style=DIM)
+        if any(c.field == "p_fail_horizon" for c in table.shown):
+            # A probability always says where it comes from (the about view has the model).
+            basis = session.assessment().model.basis
+            info.append(" · risk assumed (i)" if basis == "assumed" else
+                        f" · risk: {basis} (i)", style=DIM)
         if table.hidden:
             n = len(table.hidden)
-            info.append(f" · {n} more column{'s' if n != 1 else ''} when wider", style=DIM)
+            info.append(f" · +{n} column{'s' if n != 1 else ''} if wider", style=DIM)
         self.query_one("#viewinfo", Static).update(info)
         self._show_row()
 
