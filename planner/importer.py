@@ -30,10 +30,9 @@ from dataclasses import dataclass, field
 from typing import Any
 
 import tomli_w
-import tomlkit
-from tomlkit.items import Array
 
 from planner import edit
+from planner.edit import add_readings  # noqa: F401  (was defined here)
 from planner.errors import PlannerError, Problem
 from planner.fleet import MAX_ODOMETER, SCHEMA_VERSION, SPEC_FIELDS, Fleet, Reading
 from planner.validate import build_fleet
@@ -1255,7 +1254,7 @@ def import_readings(csv_text: str, fleet: Fleet, fleet_text: str, *, source: str
         points[vid].append((day, odo, f"the reading of row {row.number}"))
         added.append(NewReading(vid, day, odo, row.number))
     rejected.sort(key=lambda p: p.row)
-    text = add_readings(fleet_text, [(r.vehicle, r.date, r.odometer) for r in added])
+    text = edit.add_readings(fleet_text, [(r.vehicle, r.date, r.odometer) for r in added])
     report = _column_report(sheet, decoded)
     for (raw, vid), n in sorted(matched.items()):
         report.append(f"  id {raw!r} matched to vehicle {vid} (case, spaces and dashes ignored; "
@@ -1276,35 +1275,3 @@ def _loose_id(text: str) -> str:
 def _did_you_mean(word: str, choices: list[str]) -> str:
     near = difflib.get_close_matches(word, choices, n=1)
     return f"did you mean {near[0]!r}?" if near else ""
-
-
-# -- the text edit ----------------------------------------------------------------------------
-# `planner.edit.add_reading` adds one reading and parses and writes the whole document each
-# time: 300 readings into a 480-vehicle file took 150 s. Until planner.edit offers a batch
-# edit, this applies the same rule to every reading on one parse, with planner.edit's own
-# helpers, so the text is what repeated `edit.add_reading` calls give (a test checks it).
-
-def add_readings(text: str, readings: Sequence[tuple[str, dt.date, float]]) -> str:
-    """Append `(vehicle id, date, odometer)` readings to fleet-file text, keeping comments
-    and layout: each goes at the end of its vehicle's `readings` array."""
-    if not readings:
-        return text
-    doc = edit._parse(text)
-    for vid, day, odo in readings:
-        vehicle = edit._vehicle(doc, vid)
-        reading = edit._inline({"date": day, "odometer": edit._number(odo)})
-        current = vehicle.get("readings")
-        if current is None:
-            fresh = tomlkit.array()
-            fresh.add_line(reading, indent="  ")
-            fresh.add_line(indent="")
-            vehicle["readings"] = fresh
-        elif not isinstance(current, Array):
-            raise PlannerError(f"vehicle {vid}: readings is not an array",
-                               "Write readings = [ { date = …, odometer = … } ], then import "
-                               "again.")
-        elif edit._is_multiline(current):
-            current.add_line(reading, indent=edit._indent_of(current))
-        else:
-            current.append(reading)
-    return edit._dump(doc, text)
