@@ -9,10 +9,13 @@ forward) live in `planner.validate`.
 from __future__ import annotations
 
 import datetime as dt
+import re
 from enum import StrEnum
 from typing import Annotated, Literal
 
-from pydantic import BaseModel, ConfigDict, Field
+from pydantic import AfterValidator, BaseModel, BeforeValidator, ConfigDict, Field, Strict
+from pydantic.dataclasses import dataclass as pydantic_dataclass
+from pydantic.fields import FieldInfo
 
 SCHEMA_VERSION = 1
 
@@ -73,29 +76,62 @@ class DistanceUnit(StrEnum):
     MI = "mi"
 
 
+# Every scalar type is Strict: a value of the wrong TOML type is an error, never converted
+# ("168500" is not a number, 1 is not a date, 12.0 is not a whole number of months).
+STRICT = ConfigDict(extra="forbid", frozen=True, allow_inf_nan=False)
+STRICT_DATACLASS = ConfigDict(extra="forbid", allow_inf_nan=False)
+Day = Annotated[dt.date, Strict()]
+Flag = Annotated[bool, Strict()]
+
+
+# Control characters (Unicode category Cc, but tab and line ends) reach the file only as
+# escapes (\u001b, \b …; the TOML 1.0 spec forbids them raw) and would reach the terminal, a CSV
+# or a job sheet as commands: an escape sequence recolours or rewrites the screen.
+CONTROL_CHARACTER = re.compile(r"[\x00-\x08\x0b\x0c\x0e-\x1f\x7f-\x9f]")
+
+
+def _printable(text: str) -> str:
+    """Refuse control characters (the loader words the problem; see validate)."""
+    if not text.isprintable() and CONTROL_CHARACTER.search(text):
+        raise ValueError("contains a control character")
+    return text
+
+
+def _whole_number(value: object) -> object:
+    """A Literal[1] alone would take `true` for 1."""
+    if type(value) is not int:
+        raise ValueError("must be the whole number 1")
+    return value
+
+
 class _Model(BaseModel):
-    model_config = ConfigDict(extra="forbid", frozen=True, use_enum_values=False)
+    model_config = STRICT
 
 
-Odometer = Annotated[float, Field(ge=0, le=MAX_ODOMETER)]
-Money = Annotated[float, Field(ge=0, le=MAX_MONEY)]
-Hours = Annotated[float, Field(gt=0, le=MAX_HOURS)]
-IntervalDistance = Annotated[float, Field(gt=0, le=MAX_INTERVAL_DISTANCE)]
-IntervalMonths = Annotated[int, Field(gt=0, le=MAX_INTERVAL_MONTHS)]
-ShortText = Annotated[str, Field(max_length=2000)]
+Odometer = Annotated[float, Strict(), Field(ge=0, le=MAX_ODOMETER)]
+Money = Annotated[float, Strict(), Field(ge=0, le=MAX_MONEY)]
+Hours = Annotated[float, Strict(), Field(gt=0, le=MAX_HOURS)]
+IntervalDistance = Annotated[float, Strict(), Field(gt=0, le=MAX_INTERVAL_DISTANCE)]
+IntervalMonths = Annotated[int, Strict(), Field(gt=0, le=MAX_INTERVAL_MONTHS)]
+ShortText = Annotated[str, Strict(), Field(max_length=2000), AfterValidator(_printable)]
 
 
-class Reading(_Model):
-    """One dated odometer reading (fuel card, driver's log, telematics, workshop)."""
+@pydantic_dataclass(frozen=True, slots=True, config=STRICT_DATACLASS)
+class Reading:
+    """One dated odometer reading (fuel card, driver's log, telematics, workshop).
 
-    date: dt.date = Field(description="Day of the reading (ISO 8601, e.g. 2026-11-20).")
+    A pydantic dataclass rather than a model: a fleet holds hundreds of thousands of readings,
+    and this validates them about three times faster. `fields_of` reads its fields.
+    """
+
+    date: Day = Field(description="Day of the reading (ISO 8601, e.g. 2026-11-20).")
     odometer: Odometer = Field(description="Odometer at that day, in the fleet's distance unit.")
 
 
 class BeltJob(_Model):
     """A cam-drive job done on the vehicle: the belt fitted then is the one now running."""
 
-    date: dt.date = Field(description="Day the job was done.")
+    date: Day = Field(description="Day the job was done.")
     odometer: Odometer = Field(description="Odometer at the job, in the fleet's distance unit.")
     reason: JobReason = Field(
         description="scheduled (at the interval), failed (the drive let go) or precaution "
@@ -108,8 +144,8 @@ class BeltJob(_Model):
 class DateRange(_Model):
     """A span of days, both ends included."""
 
-    start: dt.date = Field(description="First day (included).")
-    end: dt.date = Field(description="Last day (included).")
+    start: Day = Field(description="First day (included).")
+    end: Day = Field(description="Last day (included).")
     reason: ShortText = Field(default="", description="Why, e.g. 'long route', 'customer away'.")
 
 
@@ -125,7 +161,8 @@ class DriveSpec(_Model):
     """Fields an engine profile sets and a vehicle may override."""
 
     fuel: Fuel | None = Field(default=None, description="petrol, diesel or other.")
-    drive: Drive | None = Field(default=None, description="belt, wet-belt, chain or gear.")
+    drive: Drive | None = Field(default=None,
+                                description="belt, wet-belt, chain or gear.")
     interference: Interference | None = Field(
         default=None,
         description="interference, non-interference or unknown (unknown is planned as "
@@ -144,7 +181,8 @@ class DriveSpec(_Model):
         default=None, description="Maker's severe-service interval by age, if published."
     )
     labour_hours: Hours | None = Field(default=None, description="Workshop hours for the job.")
-    parts: list[Annotated[str, Field(min_length=1, max_length=200)]] | None = Field(
+    parts: list[Annotated[str, Strict(), Field(min_length=1, max_length=200),
+                          AfterValidator(_printable)]] | None = Field(
         default=None, description="Parts for the job, e.g. ['belt kit', 'water pump']."
     )
     parts_cost: Money | None = Field(default=None, description="Cost of the parts.")
@@ -166,18 +204,20 @@ class EngineProfile(DriveSpec):
 class Vehicle(DriveSpec):
     """One vehicle. Drive fields given here override those of its engine profile."""
 
-    id: Annotated[str, Field(min_length=1, max_length=64)] = Field(
-        description="Unique id (fleet number or plate)."
-    )
+    id: Annotated[str, Strict(), Field(min_length=1, max_length=64),
+                  AfterValidator(_printable)] = Field(
+        description="Unique id (fleet number or plate).")
     label: ShortText = Field(default="", description="Name shown beside the id.")
-    engine: str | None = Field(default=None, description="Id of an [engines.<id>] profile.")
-    duty: Duty = Field(default=Duty.NORMAL, description="normal or severe (towing, short "
-                       "trips, stop-start delivery, long idling, dust, extreme temperatures).")
-    in_service: dt.date = Field(description="Day the vehicle entered service (or the fleet).")
+    engine: Annotated[str, Strict(), AfterValidator(_printable)] | None = Field(
+        default=None, description="Id of an [engines.<id>] profile.")
+    duty: Duty = Field(default=Duty.NORMAL,
+                       description="normal or severe (towing, short trips, stop-start delivery, "
+                       "long idling, dust, extreme temperatures).")
+    in_service: Day = Field(description="Day the vehicle entered service (or the fleet).")
     in_service_odometer: Odometer = Field(
         default=0, description="Odometer on the in-service day."
     )
-    first_registered: dt.date | None = Field(
+    first_registered: Day | None = Field(
         default=None,
         description="Day the vehicle was first registered, if it was bought used; with unknown "
         "belt history the risk model assumes a belt this old.",
@@ -203,13 +243,13 @@ class FleetSettings(_Model):
     distance_unit: DistanceUnit = Field(
         default=DistanceUnit.KM, description="km or mi: the unit of every distance in the file."
     )
-    due_soon_distance: Annotated[float, Field(ge=0, le=MAX_INTERVAL_DISTANCE)] = Field(
+    due_soon_distance: Annotated[float, Strict(), Field(ge=0, le=MAX_INTERVAL_DISTANCE)] = Field(
         default=5000, description="Warn this far before a distance limit."
     )
-    due_soon_days: Annotated[int, Field(ge=0, le=3650)] = Field(
+    due_soon_days: Annotated[int, Strict(), Field(ge=0, le=3650)] = Field(
         default=60, description="Warn this many days before a date limit."
     )
-    default_daily_distance: Annotated[float, Field(ge=0, le=5000)] | None = Field(
+    default_daily_distance: Annotated[float, Strict(), Field(ge=0, le=5000)] | None = Field(
         default=None, description="Distance per day assumed when a vehicle has too few readings."
     )
     labour_rate: Money = Field(default=0.0, description="Workshop cost per labour hour.")
@@ -218,7 +258,7 @@ class FleetSettings(_Model):
         description="Cost of a drive failure on a non-interference engine: tow, belt job and a "
         "lost day (default 400, from memory: set your own).",
     )
-    currency: Annotated[str, Field(max_length=8)] = Field(
+    currency: Annotated[str, Strict(), Field(max_length=8), AfterValidator(_printable)] = Field(
         default="", description="Currency shown beside costs, e.g. 'EUR' (display only)."
     )
 
@@ -226,18 +266,18 @@ class FleetSettings(_Model):
 class RiskSettings(_Model):
     """The [risk] table: assumptions of the failure-risk model (shown wherever it is used)."""
 
-    shape: Annotated[float, Field(gt=0, le=20)] = Field(
+    shape: Annotated[float, Strict(), Field(gt=0, le=20)] = Field(
         default=3.5, description="Weibull shape beta of drive life (default 3.5, from memory)."
     )
-    share_failed_at_interval: Annotated[float, Field(gt=0, lt=1)] = Field(
+    share_failed_at_interval: Annotated[float, Strict(), Field(gt=0, lt=1)] = Field(
         default=0.01,
         description="Share of drives expected to have failed by the maker's interval "
         "(default 0.01, from memory).",
     )
-    horizon_days: Annotated[int, Field(ge=1, le=3650)] = Field(
+    horizon_days: Annotated[int, Strict(), Field(ge=1, le=3650)] = Field(
         default=90, description="Look-ahead for the failure probability, in days."
     )
-    use_fleet_fit: bool = Field(
+    use_fleet_fit: Flag = Field(
         default=False,
         description="Use the Weibull fit from the fleet's own job history instead of the "
         "assumptions above, when the history has enough failures.",
@@ -250,20 +290,21 @@ Weekday = Literal["mon", "tue", "wed", "thu", "fri", "sat", "sun"]
 class Workshop(_Model):
     """The [workshop] table: bays and hours for the week plan."""
 
-    bays: Annotated[int, Field(ge=1, le=100)] = Field(default=1, description="Number of bays.")
-    hours_per_day: Annotated[float, Field(gt=0, le=24)] = Field(
+    bays: Annotated[int, Strict(), Field(ge=1, le=100)] = Field(default=1,
+                                                                description="Number of bays.")
+    hours_per_day: Annotated[float, Strict(), Field(gt=0, le=24)] = Field(
         default=8.0, description="Working hours per bay per day (jobs start from 08:00)."
     )
     weekdays: list[Weekday] = Field(
         default_factory=lambda: ["mon", "tue", "wed", "thu", "fri"],
         description="Working weekdays.",
     )
-    closed: list[dt.date] = Field(default_factory=list, description="Closed days (holidays).")
-    parts_lead_days: Annotated[int, Field(ge=0, le=365)] = Field(
+    closed: list[Day] = Field(default_factory=list, description="Closed days (holidays).")
+    parts_lead_days: Annotated[int, Strict(), Field(ge=0, le=365)] = Field(
         default=2, description="Calendar days from ordering parts to having them (two working "
         "days from a Friday order is 4)."
     )
-    kits_in_stock: bool = Field(
+    kits_in_stock: Flag = Field(
         default=False, description="Common kits are on the shelf: no lead time."
     )
 
@@ -271,22 +312,33 @@ class Workshop(_Model):
 class Fleet(_Model):
     """A whole fleet file."""
 
-    schema_version: Literal[1] = Field(
+    schema_version: Annotated[Literal[1], BeforeValidator(_whole_number)] = Field(
         default=SCHEMA_VERSION, alias="schema", description="Format version of the file: 1."
     )
     fleet: FleetSettings = Field(default_factory=FleetSettings)
-    engines: dict[Annotated[str, Field(min_length=1, max_length=64)], EngineProfile] = Field(
-        default_factory=dict, description="Engine profiles by id."
-    )
+    engines: dict[Annotated[str, Strict(), Field(min_length=1, max_length=64)],
+                  EngineProfile] = Field(default_factory=dict, description="Engine profiles by id.")
     vehicles: list[Vehicle] = Field(default_factory=list, description="The vehicles.")
     risk: RiskSettings = Field(default_factory=RiskSettings)
     workshop: Workshop = Field(default_factory=Workshop)
 
-    model_config = ConfigDict(extra="forbid", frozen=True, populate_by_name=True)
+    model_config = ConfigDict(**STRICT, populate_by_name=True)
 
     @property
     def unit(self) -> str:
         return self.fleet.distance_unit.value
+
+
+def fields_of(model: type) -> dict[str, FieldInfo]:
+    """The fields of a fleet-file table's class, a pydantic model or a pydantic dataclass."""
+    fields = getattr(model, "model_fields", None)
+    return fields if fields is not None else model.__pydantic_fields__
+
+
+def is_table_class(obj: object) -> bool:
+    """A class that describes a table of the fleet file."""
+    return isinstance(obj, type) and (issubclass(obj, BaseModel)
+                                      or hasattr(obj, "__pydantic_fields__"))
 
 
 def json_schema() -> dict:

@@ -11,7 +11,6 @@ import datetime as dt
 import difflib
 import functools
 import math
-import re
 import types
 import typing
 from collections.abc import Iterable
@@ -21,7 +20,15 @@ from typing import Any
 from pydantic import BaseModel, ValidationError
 
 from planner.errors import Path, PlannerError, Problem
-from planner.fleet import SPEC_FIELDS, EngineProfile, Fleet, Vehicle
+from planner.fleet import (
+    CONTROL_CHARACTER,
+    SPEC_FIELDS,
+    EngineProfile,
+    Fleet,
+    Vehicle,
+    fields_of,
+    is_table_class,
+)
 
 EARLIEST_DATE = dt.date(1950, 1, 1)
 LATEST_DATE = dt.date(2100, 12, 31)
@@ -86,18 +93,21 @@ def _vehicle_name(raw: Any, index: int) -> str:
 
 def _validated(model: type[Any], raw: dict[str, Any], prefix: Path,
                vehicle: str | None) -> tuple[Any, list[Problem]]:
-    """`model` from `raw`: wrong TOML types first (never converted), then pydantic's rules."""
-    problems: list[Problem] = []
-    _type_problems(raw, ("table", model), prefix, vehicle, problems)
-    obj = None
+    """`model` from `raw`; on failure, wrong TOML types first, then pydantic's other rules.
+
+    The models are strict (no value is ever converted), so a table that validates holds only
+    right types; the walk over raw values that words each wrong type runs only on failure.
+    """
     try:
-        obj = model.model_validate(raw)
+        return model.model_validate(raw), []
     except ValidationError as exc:
+        problems: list[Problem] = []
+        _type_problems(raw, ("table", model), prefix, vehicle, problems)
         typed = {p.path for p in problems}
         for p in _from_pydantic(exc, prefix, vehicle):
             if not any(p.path[: len(t)] == t for t in typed):  # one report per bad value
                 problems.append(p)
-    return (None if problems else obj), problems
+        return None, problems
 
 
 def check_settings(fleet: Fleet) -> list[Problem]:
@@ -299,7 +309,7 @@ def _kind(annotation: Any) -> Kind:
 def _field_checks(model: type[BaseModel]) -> dict[str, tuple[Kind, tuple[type, ...] | None]]:
     """Per key of `model`'s table: its kind, and the Python types tomllib may give it."""
     checks = {}
-    for name, f in model.model_fields.items():
+    for name, f in fields_of(model).items():
         kind = _kind(f.annotation)
         checks[f.alias or name] = (kind, _FITS.get(kind) if isinstance(kind, str) else None)
     return checks
@@ -337,6 +347,12 @@ def _type_problems(value: Any, kind: Kind, path: Path, vehicle: str | None,
                     type(item) is str and not item.isprintable()):
                 _type_problems(item, check[0], path + (key,), vehicle, out)
     elif tag == "array" and type(value) is list:
+        if isinstance(inner, tuple) and inner[0] == "table":
+            checks = _field_checks(inner[1])  # readings: a hot loop, one call per bad table
+            for i, item in enumerate(value):
+                if type(item) is not dict or not _fits_all(item, checks):
+                    _type_problems(item, inner, path + (i,), vehicle, out)
+            return
         for i, item in enumerate(value):
             _type_problems(item, inner, path + (i,), vehicle, out)
     elif tag == "tables" and type(value) is dict:
@@ -347,10 +363,21 @@ def _type_problems(value: Any, kind: Kind, path: Path, vehicle: str | None,
             _type_problems(item, inner, path + (key,), vehicle, out)
 
 
-# Control characters (Unicode category Cc, but tab and line ends) reach the file only as
-# escapes (\u001b, \b …; the TOML 1.0 spec forbids them raw) and would reach the terminal, a CSV
-# or a job sheet as commands: an escape sequence recolours or rewrites the screen.
-_CONTROL = re.compile(r"[\x00-\x08\x0b\x0c\x0e-\x1f\x7f-\x9f]")
+def _fits_all(table: dict[str, Any], checks: dict[str, tuple[Kind, Any]]) -> bool:
+    """Every known key of `table` holds a plain scalar of an allowed type (the common case)."""
+    for key, item in table.items():
+        check = checks.get(key)
+        if check is None:
+            continue
+        fits = check[1]
+        if fits is None or type(item) not in fits or (
+                type(item) is float and not math.isfinite(item)) or (
+                type(item) is str and not item.isprintable()):
+            return False
+    return True
+
+
+_CONTROL = CONTROL_CHARACTER
 _CONTROL_NAMES = {0x00: "NUL", 0x07: "bell", 0x08: "backspace", 0x0C: "form feed",
                   0x1B: "escape", 0x7F: "delete"}
 
@@ -529,7 +556,7 @@ def _explain(err: Any, path: Path, is_key: bool = False) -> tuple[str, str]:
             return f"an item of {name} is empty", "remove the empty \"\" from the array"
         what = "an id (fleet number or plate)" if name == "id" else "some text"
         return f"{name} is empty", f"write {what}, or remove the key"
-    if kind in ("model_type", "model_attributes_type", "dict_type"):
+    if kind in ("model_type", "model_attributes_type", "dict_type", "dataclass_type"):
         header = ".".join(str(p) for p in path if isinstance(p, str))
         if item:
             example = "{ date = 2026-11-20, odometer = 98400 }" if name == "readings" else \
@@ -561,7 +588,7 @@ def _description(path: Path) -> str:
     parent = _model_at(path[:-1])
     if parent is None or not path or not isinstance(path[-1], str):
         return ""
-    for name, f in parent.model_fields.items():
+    for name, f in fields_of(parent).items():
         if path[-1] in (name, f.alias):
             return f.description or ""
     return ""
@@ -572,7 +599,7 @@ def _allowed_keys(path: Path) -> list[str]:
     model = _model_at(path)
     if model is None:
         return []
-    return [f.alias or name for name, f in model.model_fields.items()]
+    return [f.alias or name for name, f in fields_of(model).items()]
 
 
 def _model_at(path: Path) -> Any:
@@ -584,9 +611,9 @@ def _model_at(path: Path) -> Any:
         if model is dict:
             model = EngineProfile
             continue
-        field = model.model_fields.get(part) if _is_model(model) else None
+        field = fields_of(model).get(part) if _is_model(model) else None
         if field is None:
-            alias_hit = [f for f in model.model_fields.values() if f.alias == part]
+            alias_hit = [f for f in fields_of(model).values() if f.alias == part]
             if not alias_hit:
                 return None
             field = alias_hit[0]
@@ -597,7 +624,7 @@ def _model_at(path: Path) -> Any:
 
 
 def _is_model(obj: Any) -> bool:
-    return isinstance(obj, type) and issubclass(obj, BaseModel)
+    return is_table_class(obj)
 
 
 def _inner_model(annotation: Any) -> Any:
