@@ -34,7 +34,7 @@ from planner.locate import line_of, locate
 from planner.validate import build_fleet
 
 BOM = "\ufeff"
-MAX_FILE_BYTES = 64 * 1024 * 1024
+MAX_FILE_BYTES = 512 * 1024 * 1024  # a 100,000-vehicle fleet with ten years of readings is ~100 MB
 BACKUP_SUFFIX = ".bak"
 TEMP_SUFFIX = ".tmp"
 STALE_TEMP_SECONDS = 600  # a leftover temporary file this old belongs to no running save
