@@ -160,7 +160,8 @@ def test_risk_command_shows_the_fit_and_the_capped_point(capsys):
     assert all(p["replace_at_share_of_interval"] <= 1.0 for p in doc["replacement_points"])
 
 
-@pytest.mark.parametrize("command", ["check", "list", "risk", "schema"])
+@pytest.mark.parametrize("command", ["check", "list", "risk", "week", "import", "readings",
+                                     "schema"])
 def test_every_command_has_help_with_an_example(command, capsys):
     with pytest.raises(SystemExit) as done:
         main([command, "--help"])

@@ -30,6 +30,8 @@ belongs to a qualified technician; a belt past its interval can stop the engine 
 
 EPILOG = """\
 examples:
+  beltplan fleet_examples/courier_fleet.toml      open the terminal UI on a fleet file
+  beltplan                                        open ./fleet.toml (offers to create it)
   beltplan list fleet_examples/courier_fleet.toml
   beltplan list fleet.toml --status overdue --format csv -o overdue.csv
   beltplan check fleet.toml
@@ -53,12 +55,14 @@ def main(argv: Sequence[str] | None = None) -> int:
     args_in = list(sys.argv[1:] if argv is None else argv)
     parser = build_parser()
     # `beltplan [FILE] [options]` (no command word) opens the terminal UI.
-    if not args_in or (args_in[0] not in COMMANDS and not args_in[0].startswith("-")):
+    first = args_in[0] if args_in else ""
+    if first not in COMMANDS and first not in ("-h", "--help", "--version"):
         from planner.cli import cmd_open
 
-        args_in = ["open", *args_in]
-        parser = argparse.ArgumentParser(prog="beltplan")
-        cmd_open.register(parser.add_subparsers(dest="command"))
+        holder = argparse.ArgumentParser(prog="beltplan").add_subparsers()
+        cmd_open.register(holder)
+        parser = holder.choices["open"]
+        parser.prog = "beltplan"  # usage reads `beltplan [FILE] …`, not `beltplan open`
     args = parser.parse_args(args_in)
     if not getattr(args, "run", None):
         parser.print_help()
