@@ -251,11 +251,11 @@ def add_months(day: dt.date, months: int) -> dt.date:
     The semantics of python-dateutil's `relativedelta(months=…)`, which the tests check it
     against; written out because it runs for every belt on every plan.
     """
-    index = day.year * 12 + (day.month - 1) + months
-    year, month = divmod(index, 12)
+    year, month = divmod(day.year * 12 + (day.month - 1) + months, 12)
     month += 1
-    last = calendar.monthrange(year, month)[1]
-    return dt.date(year, month, min(day.day, last))
+    if day.day <= 28:  # every month has it: the common case needs no calendar
+        return dt.date(year, month, day.day)
+    return dt.date(year, month, min(day.day, calendar.monthrange(year, month)[1]))
 
 
 def life_fraction(spec: Spec, install: Install, est_odometer: float | None,
