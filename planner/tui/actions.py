@@ -3,7 +3,8 @@
 The key bindings, the command palette and the help view are all generated from `ACTIONS`, so
 they cannot disagree. `target="app"` actions run `BeltplanApp.action_<id>` and apply on the
 screens named in `scopes` (the app's `check_action` enforces that); `target="screen"` actions
-are bound on the form and dialog screens themselves and run their `action_<id>`.
+are bound on the form and dialog screens (and the week view) themselves and run their
+`action_<id>`.
 """
 
 from __future__ import annotations
@@ -13,7 +14,8 @@ from dataclasses import dataclass
 from textual.binding import Binding
 
 MAIN, DETAIL, ERROR, FORM, HELP = "main", "detail", "error", "form", "help"
-ANY_VIEW = (MAIN, DETAIL, ERROR)
+WEEK = "week"
+ANY_VIEW = (MAIN, DETAIL, ERROR, WEEK)
 LOADED = (MAIN, DETAIL)
 
 
@@ -64,6 +66,43 @@ ACTIONS: tuple[Action, ...] = (
            "Edit", LOADED),
     Action("undo", "u,ctrl+z", "undo", "Undo the last change (again for the one before)",
            "Edit", LOADED),
+    Action("import_readings", "o", "import readings", "Import odometer readings from a CSV "
+           "export (fuel card, telematics, driver's log): see what would be added, skipped "
+           "and rejected, then apply", "Edit", LOADED, short="import"),
+    # The workshop week: a planning aid for this session, never saved into the fleet file.
+    # The week view's own keys are bound on the view (target "screen"), like a form's.
+    Action("week", "w", "week plan", "Open the workshop week: belt jobs by day and bay, the "
+           "hours left, what did not fit and why, parts to order, who to call", "Week plan",
+           (MAIN,), short="week"),
+    Action("week_close", "escape,w", "back", "Close the week plan (its moves stay for this "
+           "session)", "Week plan", (WEEK,), strip=(WEEK,), target="screen"),
+    Action("week_detail", "enter", "detail", "Open the detail of the highlighted job's "
+           "vehicle", "Week plan", (WEEK,), target="screen"),
+    Action("week_move", "m", "move", "Move the highlighted job: choose its first day and bay; "
+           "the planner's rules decide, and a refusal says why", "Week plan", (WEEK,),
+           strip=(WEEK,), target="screen"),
+    Action("week_earlier", "shift+up", "a day earlier", "Move the highlighted job one working "
+           "day earlier, same bay", "Week plan", (WEEK,), target="screen", short="earlier"),
+    Action("week_later", "shift+down", "a day later", "Move the highlighted job one working "
+           "day later, same bay", "Week plan", (WEEK,), target="screen", short="later"),
+    Action("week_bay", "b", "other bay", "Move the highlighted job to the next bay, same day",
+           "Week plan", (WEEK,), strip=(WEEK,), target="screen", short="bay"),
+    Action("week_undo", "u", "undo move", "Take back the last move (again for the one "
+           "before)", "Week plan", (WEEK,), target="screen"),
+    Action("week_dates", "d", "dates", "Change the first day, the number of weeks and which "
+           "vehicles to book (plans again)", "Week plan", (WEEK,), strip=(WEEK,),
+           target="screen"),
+    Action("week_export", "x", "export", "Export the week as shown: CSV (jobs, parts or "
+           "calls), JSON, Markdown job sheets or iCalendar", "Week plan", (WEEK,),
+           strip=(WEEK,), target="screen"),
+    Action("week_board", "1", "days and bays", "Show the days, the bays and the jobs in them",
+           "Week plan", (WEEK,), target="screen"),
+    Action("week_parts", "2", "parts order", "Show the parts to order and by when",
+           "Week plan", (WEEK,), target="screen"),
+    Action("week_calls", "3", "call list", "Show the customers to call", "Week plan", (WEEK,),
+           target="screen"),
+    Action("week_totals", "4", "totals", "Show hours, cost, the risk removed, the risk "
+           "assumptions and the notes", "Week plan", (WEEK,), target="screen"),
     # The file
     Action("save", "ctrl+s", "save", "Save to the fleet file: checked, atomic, with a .bak "
            "of the previous version; refuses if the file changed on disk", "File", LOADED,

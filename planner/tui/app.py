@@ -1,7 +1,8 @@
 """The Textual application: one session, the views over it, and the actions' handlers.
 
 Build it with `create_app(path, as_of)` (the command line and every test do). The planning date
-is always passed in; nothing under `planner.tui` reads the clock.
+is always passed in; nothing under `planner.tui` reads the clock except `planner.tui.clock`
+(an exported calendar's DTSTAMP, "today" for imported readings).
 """
 
 from __future__ import annotations
@@ -16,6 +17,8 @@ from textual.screen import Screen
 from planner.tui.actions import BY_ID, bindings, first_key, scope_of
 from planner.tui.app_edit import EditActions
 from planner.tui.app_file import FileActions
+from planner.tui.app_import import ImportActions
+from planner.tui.app_week import WeekActions
 from planner.tui.commands import ActionCommands
 from planner.tui.look import STYLES, THEME
 from planner.tui.screens.detail import DetailScreen
@@ -30,7 +33,8 @@ from planner.tui.widgets.bars import TitleBar
 from planner.tui.widgets.fleet_table import next_sort
 
 
-class BeltplanApp(EditActions, FileActions, App[None], inherit_bindings=False):
+class BeltplanApp(EditActions, FileActions, ImportActions, WeekActions, App[None],
+                  inherit_bindings=False):
     """The planner's terminal UI over one fleet file."""
 
     TITLE = "beltplan"

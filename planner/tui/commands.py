@@ -10,15 +10,20 @@ from planner.tui.actions import ACTIONS, Action, key_label, scope_of
 
 
 def _usable(action: Action, scope: str | None) -> bool:
-    return action.target == "app" and scope in action.scopes and action.id != "command_palette"
+    return scope in action.scopes and action.id != "command_palette"
 
 
 class ActionCommands(Provider):
-    """Every app action that applies to the screen the palette was opened from."""
+    """Every action that applies to the screen the palette was opened from: the app's, and
+    the screen's own (`target="screen"`, e.g. the week view's)."""
 
     def _actions(self) -> list[Action]:
         scope = scope_of(self.screen)
         return [a for a in ACTIONS if _usable(a, scope)]
+
+    def _run(self, action: Action) -> partial:
+        target = self.screen if action.target == "screen" else self.app
+        return partial(target.run_action, action.id)
 
     def _help(self, action: Action) -> str:
         return f"{key_label(action.keys)} · {action.help}"
@@ -30,11 +35,11 @@ class ActionCommands(Provider):
             score = max(matcher.match(words), matcher.match(action.help) * 0.8)
             if score > 0:
                 yield Hit(score, matcher.highlight(words),
-                          partial(self.app.run_action, action.id), text=words,
+                          self._run(action), text=words,
                           help=self._help(action))
 
     async def discover(self) -> Hits:
         for action in self._actions():
             words = f"{action.title.capitalize()} ({action.group.lower()})"
-            yield DiscoveryHit(words, partial(self.app.run_action, action.id), text=words,
+            yield DiscoveryHit(words, self._run(action), text=words,
                                help=self._help(action))

@@ -10,7 +10,7 @@ from textual.containers import Vertical, VerticalScroll
 from textual.widgets import Static
 
 from planner import __version__, export
-from planner.tui.actions import ACTIONS, HELP, bindings, key_label
+from planner.tui.actions import ACTIONS, ANY_VIEW, HELP, bindings, key_label
 from planner.tui.look import (
     ACCENT,
     CONSEQUENCE_SYMBOL,
@@ -24,7 +24,7 @@ from planner.tui.look import (
 from planner.tui.screens.modal import Popup
 
 VIEW_NAMES = {"main": "list", "detail": "detail", "error": "error view", "form": "pop-ups",
-              "help": "help, about"}
+              "help": "help, about", "week": "week"}
 
 
 class HelpPopup(Popup[None]):
@@ -49,7 +49,8 @@ def keys_tables() -> list[RenderableType]:
         table.add_column(no_wrap=True, style=DIM, min_width=12)
         for action in ACTIONS:
             if action.group == group:
-                where = ", ".join(VIEW_NAMES[s] for s in action.scopes)
+                where = ("every view" if action.scopes == ANY_VIEW else
+                         ", ".join(VIEW_NAMES[s] for s in action.scopes))
                 table.add_row(Text(key_label(action.keys)), Text(action.help), Text(where))
         out.append(table)
     return out
