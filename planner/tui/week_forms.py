@@ -85,7 +85,7 @@ def dates_form(state: WeekState) -> FormSpec:
         return state.replan(start, int(weeks), v["include"])
 
     quick = [
-        (f"next working day, {first}", {"start": first.isoformat()}),
+        ("next working day", {"start": first.isoformat()}),
         ("a week later", {"start": (week.start + dt.timedelta(days=7)).isoformat()}),
         ("one week", {"weeks": "1"}),
         ("two weeks", {"weeks": "2"}),

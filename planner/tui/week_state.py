@@ -32,7 +32,7 @@ class ExportKind:
 
 
 EXPORT_KINDS: tuple[ExportKind, ...] = (
-    ExportKind("jobs", "-jobs.csv", "CSV: every job by day and bay, then those not placed",
+    ExportKind("jobs", "-jobs.csv", "CSV: jobs by day and bay, then those not placed",
                "the jobs as CSV"),
     ExportKind("parts", "-parts.csv", "CSV: the parts order list", "the parts order as CSV"),
     ExportKind("calls", "-calls.csv", "CSV: the customers to call", "the call list as CSV"),

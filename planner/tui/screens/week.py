@@ -166,6 +166,7 @@ class WeekScreen(WeekViewActions, Screen):
     def show_section(self, section: str) -> None:
         self.section = section
         self.query_one(ContentSwitcher).current = f"w-{section}"
+        self.query_one("#w-info").display = section == "board"  # it is about the board's job
         week = self.board.week
         if week is not None:
             self._tabs(week)
@@ -191,6 +192,8 @@ class WeekScreen(WeekViewActions, Screen):
             text.append("\n")
             text.append(literal(err.message))
         self.message = text
+        if self.section != "board":
+            self.show_section("board")
         self._info()
 
     # -- events -----------------------------------------------------------------------------
