@@ -54,3 +54,10 @@ def courier_copy(tmp_path: Path) -> Path:
     target = tmp_path / "courier_fleet.toml"
     target.write_text(COURIER.read_text(encoding="utf-8"), encoding="utf-8")
     return target
+
+
+@pytest.fixture(autouse=True)
+def _plain_environment(monkeypatch: pytest.MonkeyPatch) -> None:
+    """Every test starts from the same terminal environment, whatever the caller's shell says:
+    NO_COLOR (which Textual and rich honour) would change snapshots and rendered output."""
+    monkeypatch.delenv("NO_COLOR", raising=False)
