@@ -56,12 +56,16 @@ class SummaryLine(Static):
 
     DEFAULT_CSS = "SummaryLine { height: auto; padding: 0 1; background: $surface; }"
 
+    _counted: tuple[Sequence[dict[str, Any]], list[tuple[str, int]]] | None = None
+
     def show(self, as_of: dt.date, records: Sequence[dict[str, Any]], shown: int) -> None:
         text = literal("Plan date ", DIM)
         text.append(as_of.isoformat(), style="bold")
         text.append(" │ ", style=DIM)
         text.append(f"{len(records)} vehicles: ")
-        counts = status_counts(records)
+        if self._counted is None or self._counted[0] is not records:
+            self._counted = (records, status_counts(records))  # once per plan, not per filter
+        counts = self._counted[1]
         for k, (status, n) in enumerate(counts):
             if k:
                 text.append("  ")
