@@ -8,13 +8,14 @@ from rich.text import Text
 from textual.app import ComposeResult
 from textual.containers import Horizontal
 from textual.screen import Screen
-from textual.widgets import DataTable, Input, Label, Static
+from textual.widgets import Input, Label, Static
 
 from planner.tui.actions import MAIN
 from planner.tui.look import DIM, STYLES, literal
 from planner.tui.view import View, describe
 from planner.tui.widgets.bars import KeyStrip, SummaryLine, TitleBar
 from planner.tui.widgets.fleet_table import FleetTable, next_sort
+from planner.tui.widgets.lazy_table import LazyTable
 
 if TYPE_CHECKING:
     from planner.tui.app import BeltplanApp
@@ -98,12 +99,12 @@ class MainScreen(Screen):
         box.update(text)
 
     # -- events ---------------------------------------------------------------------------
-    def on_data_table_row_highlighted(self, event: DataTable.RowHighlighted) -> None:
+    def on_lazy_table_row_highlighted(self, event: LazyTable.RowHighlighted) -> None:
         self._show_row()
 
-    def on_data_table_row_selected(self, event: DataTable.RowSelected) -> None:
+    def on_lazy_table_row_selected(self, event: LazyTable.RowSelected) -> None:
         event.stop()
-        self.beltapp.open_detail(str(event.row_key.value))
+        self.beltapp.open_detail(event.key)
 
     def on_fleet_table_sort_asked(self, event: FleetTable.SortAsked) -> None:
         self.set_view(next_sort(self.table.view, event.field))

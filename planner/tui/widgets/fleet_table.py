@@ -1,24 +1,71 @@
-"""The fleet table: one DataTable row per vehicle, rendered lazily by Textual.
+"""The fleet table: one row per vehicle of the current view, only the rows on screen rendered.
 
-Cells are built once per plan (a new text or planning date) and kept by vehicle id; filtering
-and sorting only re-list the cached rows, and columns are rebuilt only when the set that fits
-the width changes. Row keys are vehicle ids, so the cursor stays on its vehicle.
+Cells are built once per plan (a new text or planning date), by `prepare_rows`, which can run
+off the UI thread; a vehicle whose record did not change keeps its cells, and equal values share
+one cell. Filtering and sorting only re-list vehicle ids (`view.Listing`); the table renders the
+rows that are on screen (`LazyTable`). Columns are rebuilt only when the set that fits the width
+changes. The cursor stays on its vehicle.
 """
 
 from __future__ import annotations
 
-from collections.abc import Sequence
+from collections.abc import Hashable, Sequence
+from dataclasses import dataclass
 from typing import Any
 
 from rich.text import Text
 from textual.message import Message
-from textual.widgets import DataTable
 
 from planner.tui import columns as cols
-from planner.tui.view import TRIAGE, View, arrange
+from planner.tui.view import TRIAGE, Listing, View
+from planner.tui.widgets.lazy_table import LazyTable, TableColumn
+
+UNIQUE = frozenset({"id", "label"})  # fields not worth sharing cells for
 
 
-class FleetTable(DataTable):
+@dataclass(frozen=True)
+class TableRows:
+    """Every vehicle's cells for one plan, and each column's natural width."""
+
+    records: list[dict[str, Any]]
+    columns: list[cols.Column]
+    cells: dict[str, dict[str, Text]]
+    widths: dict[str, int]
+
+
+def prepare_rows(records: Sequence[dict[str, Any]], table_columns: Sequence[tuple[str, str]],
+                 previous: TableRows | None = None) -> TableRows:
+    """The cells of `records` (pure: safe in a worker thread); unchanged vehicles keep theirs.
+
+    Cells are `columns.row_cells`; a value repeated in a column (a status, a date) is built
+    once and shared, which nothing mutates after this.
+    """
+    records = records if isinstance(records, list) else list(records)  # kept: compared by `is`
+    columns = cols.columns_for(table_columns, records)
+    reuse = previous.cells if previous is not None and previous.columns == columns else {}
+    before = {r["id"]: r for r in previous.records} if reuse and previous else {}
+    shared: dict[tuple[str, type, Hashable], Text] = {}
+    cells: dict[str, dict[str, Text]] = {}
+    for rec in records:
+        vid = rec["id"]
+        if vid in reuse and before.get(vid) == rec:
+            cells[vid] = reuse[vid]
+            continue
+        row: dict[str, Text] = {}
+        for col in columns:
+            value = rec.get(col.field)
+            key = (col.field, type(value), value)
+            if col.field in UNIQUE or not isinstance(value, Hashable):
+                row[col.field] = cols.row_cells(rec, (col,))[0]
+            elif (text := shared.get(key)) is not None:
+                row[col.field] = text
+            else:
+                row[col.field] = shared[key] = cols.row_cells(rec, (col,))[0]
+        cells[vid] = row
+    return TableRows(records, columns, cells, cols.natural_widths(columns, cells.values()))
+
+
+class FleetTable(LazyTable):
     """The vehicles of the current view."""
 
     class SortAsked(Message):
@@ -29,43 +76,38 @@ class FleetTable(DataTable):
             self.field = field
 
     def __init__(self, **kwargs: Any) -> None:
-        super().__init__(cursor_type="row", cell_padding=cols.CELL_PADDING, **kwargs)
-        self.records: list[dict[str, Any]] = []
-        self.all_columns: list[cols.Column] = []
+        super().__init__(cell_padding=cols.CELL_PADDING, **kwargs)
+        self.prepared = TableRows([], [], {}, {})
+        self._listing = Listing([])
         self.shown: list[cols.Column] = []
         self.hidden: list[cols.Column] = []
         self.view = View()
         self.listed: list[dict[str, Any]] = []
-        self._cells: dict[str, dict[str, Text]] = {}
-        self._widths: dict[str, int] = {}
         self._fitted_width = -1
 
     # -- data -----------------------------------------------------------------------------
+    @property
+    def records(self) -> list[dict[str, Any]]:
+        return self.prepared.records
+
+    @property
+    def all_columns(self) -> list[cols.Column]:
+        return self.prepared.columns
+
     def set_records(self, records: Sequence[dict[str, Any]],
                     table_columns: Sequence[tuple[str, str]]) -> None:
         """New plan: cells are rebuilt only for the vehicles whose record changed."""
-        old = {r["id"]: r for r in self.records}
-        self.records = list(records)
-        columns = cols.columns_for(table_columns, self.records)
-        same_columns = columns == self.all_columns
-        self.all_columns = columns
-        cells: dict[str, dict[str, Text]] = {}
-        changed = []
-        for rec in self.records:
-            vid = rec["id"]
-            if same_columns and vid in self._cells and old.get(vid) == rec:
-                cells[vid] = self._cells[vid]
-                continue
-            cells[vid] = {c.field: text for c, text in
-                          zip(columns, cols.row_cells(rec, columns), strict=True)}
-            changed.append(vid)
-        self._cells = cells
-        widths = cols.natural_widths(columns, cells.values())
-        if not same_columns or widths != self._widths or not self.shown:
-            self._widths = widths
+        self.show_rows(prepare_rows(records, table_columns, self.prepared))
+
+    def show_rows(self, rows: TableRows) -> None:
+        """New plan, its cells already prepared (by `prepare_rows`, perhaps in a worker)."""
+        old = self.prepared
+        self.prepared = rows
+        self._listing = Listing(rows.records)
+        if rows.columns != old.columns or rows.widths != old.widths or not self.shown:
             self._refit(force=True)
         else:
-            self._relist(changed)
+            self._relist()
 
     def set_view(self, view: View) -> None:
         self.view = view
@@ -73,13 +115,11 @@ class FleetTable(DataTable):
 
     @property
     def current_id(self) -> str | None:
-        if not self.listed or self.cursor_row < 0 or self.cursor_row >= len(self.listed):
-            return None
-        return self.listed[self.cursor_row]["id"]
+        return self.cursor_key
 
     def current_record(self) -> dict[str, Any] | None:
-        vid = self.current_id
-        return next((r for r in self.listed if r["id"] == vid), None)
+        row = self.cursor_row
+        return self.listed[row] if 0 <= row < len(self.listed) else None
 
     def heading_of(self) -> dict[str, str]:
         return {c.field: c.heading for c in self.all_columns}
@@ -95,13 +135,13 @@ class FleetTable(DataTable):
         if not force and width == self._fitted_width:
             return
         self._fitted_width = width
-        shown, hidden = cols.fit(self.all_columns, self._widths, width)
+        widths = self.prepared.widths
+        shown, hidden = cols.fit(self.all_columns, widths, width)
         if not force and [c.field for c in shown] == [c.field for c in self.shown]:
             return
         self.shown, self.hidden = shown, hidden
-        self.clear(columns=True)
-        for col in shown:
-            self.add_column(self._heading(col), width=self._widths[col.field], key=col.field)
+        self.set_columns([TableColumn(c.field, self._heading(c), widths[c.field])
+                          for c in shown])
         self._relist()
 
     def _heading(self, col: cols.Column) -> Text:
@@ -110,51 +150,36 @@ class FleetTable(DataTable):
         if self.view.sort == col.field:
             style = "bold underline"
             arrow = "↓" if self.view.reverse else "↑"
-            if len(words) + 2 <= self._widths.get(col.field, 0):
+            if len(words) + 2 <= self.prepared.widths.get(col.field, 0):
                 words = f"{words} {arrow}" if not col.right else f"{arrow} {words}"
         return Text(words, justify="right" if col.right else "left", style=style)
 
-    def _relist(self, changed: Sequence[str] = ()) -> None:
-        """Re-list the cached rows for the current view, keeping the cursor's vehicle.
+    def _relist(self) -> None:
+        """Re-list the prepared rows for the current view, keeping the cursor's vehicle.
 
-        The same rows in the same order only get their `changed` cells replaced; a new order
-        of the same rows is a DataTable.sort; only a new set of rows (a filter) is re-added.
-        Nothing is re-planned or re-rendered here.
+        Only ids are listed here; nothing is re-planned or formatted, and the table renders
+        only the rows on screen.
         """
         keep = self.current_id
-        before = [r["id"] for r in self.listed]
-        self.listed = arrange(self.records, self.view)
+        self.listed = self._listing.arrange(self.view)
         for col in self.shown:
-            self.columns[col.field].label = self._heading(col)  # type: ignore[index]
-        ids = [r["id"] for r in self.listed]
+            self.set_heading(col.field, self._heading(col))
         fields = [c.field for c in self.shown]
-        if ids and self.row_count == len(ids) and sorted(before) == sorted(ids):
-            for vid in changed:
-                if vid in self.rows:
-                    for name in fields:
-                        self.update_cell(vid, name, self._cells[vid][name])
-            if ids != before:
-                order = {vid: k for k, vid in enumerate(ids)}
-                self.sort("id", key=lambda cell: order[cell.plain])
-            self.refresh()
-        else:
-            self.clear()
-            for vid in ids:
-                cells = self._cells[vid]
-                self.add_row(*(cells[f] for f in fields), key=vid)
-        if keep is not None:
-            self.select_id(keep)
+        cells = self.prepared.cells
+        self.set_rows([r["id"] for r in self.listed],
+                      lambda vid: [cells[vid][f] for f in fields], keep=keep)
 
     def select_id(self, vehicle_id: str) -> bool:
-        for index, rec in enumerate(self.listed):
-            if rec["id"] == vehicle_id:
-                self.move_cursor(row=index, animate=False)
-                return True
-        return False
+        try:
+            index = self.ordered_keys.index(vehicle_id)
+        except ValueError:
+            return False
+        self.move_cursor(row=index, animate=False)
+        return True
 
-    def on_data_table_header_selected(self, event: DataTable.HeaderSelected) -> None:
+    def on_lazy_table_header_selected(self, event: LazyTable.HeaderSelected) -> None:
         event.stop()
-        self.post_message(self.SortAsked(str(event.column_key.value)))
+        self.post_message(self.SortAsked(event.column_key))
 
 
 def next_sort(view: View, field: str) -> View:
