@@ -1,4 +1,4 @@
-"""The UI at fleet scale: the lazy table, filters and sorts at a few thousand vehicles.
+"""The UI at fleet scale: reading and re-planning in workers, the lazy table, filters at size.
 
 Speed itself is measured by `tests/benchmarks/bench_ui.py` (ratios against a baseline in the same
 run), not here; these tests check that the fast paths give the same answers as the plain ones.
@@ -7,6 +7,10 @@ run), not here; these tests check that the fast paths give the same answers as t
 from __future__ import annotations
 
 import asyncio
+import datetime as dt
+import gc
+import threading
+from collections.abc import Callable
 from pathlib import Path
 from typing import Any
 
@@ -15,12 +19,16 @@ from rich.text import Text
 from textual.app import App, ComposeResult
 from textual.widgets import DataTable
 
-from planner import export
+from planner import edit, export
 from planner.fileio import load_fleet, parse_fleet_text
 from planner.generate import generate_fleet_text
 from planner.risk import assess_fleet_plan
+from planner.tui import app as app_module
 from planner.tui import columns as cols
+from planner.tui import session as session_module
+from planner.tui.background import gc_paused
 from planner.tui.look import THEME
+from planner.tui.session import Session, plan
 from planner.tui.view import TRIAGE, Listing, View, sort_value
 from planner.tui.widgets.fleet_table import prepare_rows
 from planner.tui.widgets.lazy_table import LazyTable, TableColumn
@@ -28,6 +36,8 @@ from tests.test_tui_support import (
     AS_OF,
     EXAMPLE,
     LARGE,
+    SMALL,
+    copy_example,
     listed_ids,
     make_app,
     opened,
@@ -51,6 +61,224 @@ def big_fleet(tmp_path_factory) -> Path:
 def big_records(big_fleet) -> list[dict[str, Any]]:
     """The engine's own records for the big fleet, in triage order (what the table lists)."""
     return export.assessment_records(assess_fleet_plan(load_fleet(big_fleet).fleet, AS_OF))
+
+
+class Gate:
+    """Holds work the UI does in a worker thread until the test lets it go."""
+
+    def __init__(self) -> None:
+        self.armed = True
+        self.release = threading.Event()
+        self.threads: list[threading.Thread] = []
+
+    def hold(self, real: Callable[..., Any]) -> Callable[..., Any]:
+        """`real`, done at once, its result handed back only once the gate is released."""
+        def held(*args: Any, **kwargs: Any) -> Any:
+            if not self.armed:
+                return real(*args, **kwargs)
+            self.threads.append(threading.current_thread())
+            result = real(*args, **kwargs)
+            assert self.release.wait(20), "the test never let the work go"
+            return result
+
+        return held
+
+
+@pytest.fixture
+def held_read(monkeypatch) -> Gate:
+    gate = Gate()
+    monkeypatch.setattr(Session, "read", gate.hold(Session.read))
+    return gate
+
+
+@pytest.fixture
+def held_plan(monkeypatch) -> Gate:
+    gate = Gate()
+    gate.armed = False  # the first read plans at once; the test arms it for the re-plan
+    monkeypatch.setattr(session_module, "plan", gate.hold(session_module.plan))
+    monkeypatch.setattr(app_module, "QUICK_PLAN", 0.0)  # re-plan in a worker whatever the size
+    return gate
+
+
+def engine_ids(path: Path) -> list[str]:
+    return [p.id for p in assess_fleet_plan(load_fleet(path).fleet, AS_OF).plans]
+
+
+# -- reading in a worker ----------------------------------------------------------------------
+
+@sync
+async def test_a_good_file_is_read_in_a_worker_behind_a_live_loading_view(held_read):
+    app = make_app()
+    async with app.run_test(size=SMALL) as pilot:
+        await until(pilot, lambda: held_read.threads, what="the read to start")
+        assert held_read.threads[0] is not threading.main_thread()
+        assert screen_name(app) == "LoadingScreen"
+        assert "Reading" in text_of(app.screen.query_one("#loading-what"))
+        assert "reading the file" in text_of(app.screen.query_one("#title-left"))
+        # The UI answers while the file is read: help opens and closes, editing keys do not.
+        await pilot.press("question_mark")
+        await until(pilot, lambda: screen_name(app) == "HelpScreen", what="help")
+        await pilot.press("escape")
+        await until(pilot, lambda: screen_name(app) == "LoadingScreen")
+        await pilot.press("r")
+        assert screen_name(app) == "LoadingScreen"
+        held_read.release.set()
+        await until(pilot, lambda: screen_name(app) == "MainScreen", what="the list")
+        assert listed_ids(app) == engine_ids(EXAMPLE)
+        summary = text_of(app.screen.query_one("#summary"))
+        assert "16 vehicles: " in summary and "4 overdue" in summary
+        assert "reading" not in text_of(app.screen.query_one("#title-left"))
+
+
+@sync
+async def test_a_bad_file_read_in_the_worker_opens_the_error_view(tmp_path, held_read):
+    path = copy_example(tmp_path)
+    path.write_text(path.read_text().replace('engine = "nk12"', 'engine = "nk21"', 1))
+    app = make_app(path)
+    async with app.run_test(size=SMALL) as pilot:
+        await until(pilot, lambda: held_read.threads, what="the read to start")
+        assert screen_name(app) == "LoadingScreen"
+        held_read.release.set()
+        await until(pilot, lambda: screen_name(app) == "ErrorScreen", what="the error view")
+        words = " ".join(text_of(app.screen.query_one("#e-problems")).split())
+        assert "field engine" in words and "did you mean 'nk12'?" in words
+        assert app.is_running
+
+
+@sync
+async def test_a_bug_while_reading_is_the_error_view_not_a_traceback(monkeypatch):
+    def broken(self, with_plan=True):
+        raise RuntimeError("boom")
+
+    monkeypatch.setattr(Session, "read", broken)
+    app = make_app()
+    async with app.run_test(size=SMALL) as pilot:
+        await until(pilot, lambda: screen_name(app) == "ErrorScreen", what="the error view")
+        title = text_of(app.screen.query_one("#e-title"))
+        assert "this is a bug" in title and "RuntimeError: boom" in title
+        assert app.is_running
+        await pilot.press("q")
+        await until(pilot, lambda: not app.is_running, what="quit")
+
+
+@sync
+async def test_a_newer_read_wins_over_an_older_one(tmp_path, held_read):
+    """Reload while a read is held: the older result is dropped, the newer one shown."""
+    path = copy_example(tmp_path)
+    app = make_app(path)
+    async with app.run_test(size=SMALL) as pilot:
+        await until(pilot, lambda: held_read.threads, what="the first read")
+        path.write_text(path.read_text().replace('name = "Kestrel Lane Couriers"',
+                                                 'name = "Kestrel Lane Couriers Ltd"'))
+        await pilot.press("ctrl+r")
+        await until(pilot, lambda: len(held_read.threads) == 2, what="the second read")
+        held_read.release.set()
+        await until(pilot, lambda: screen_name(app) == "MainScreen", what="the list")
+        await until(pilot, lambda: not app.reading)
+        assert app.session.name == "Kestrel Lane Couriers Ltd"  # the older read said "Couriers"
+
+
+@sync
+async def test_quitting_while_a_big_read_runs_does_not_wait_for_it(held_read):
+    app = make_app()
+    async with app.run_test(size=SMALL) as pilot:
+        await until(pilot, lambda: held_read.threads, what="the read to start")
+        await pilot.press("q")
+        await until(pilot, lambda: not app.is_running, what="quit")
+    assert held_read.threads[0].daemon and held_read.threads[0].is_alive()
+    held_read.release.set()
+
+
+# -- the garbage collector while reading and planning -----------------------------------------
+
+def test_reads_plans_and_cells_hold_no_reference_cycles(big_fleet):
+    """`gc_paused` freezes them out of the cyclic collector: refcounting alone must free them."""
+    gc.collect()
+    gc.disable()
+    try:
+        reading = Session(big_fleet, AS_OF).read()
+        assert reading.planned is not None and reading.loaded is not None
+        rows = prepare_rows(reading.planned.records, reading.planned.columns())
+        later = plan(reading.loaded.fleet, AS_OF + dt.timedelta(days=30))
+        again = prepare_rows(later.records, later.columns(), rows)
+        del reading, rows, later, again
+        assert gc.collect() == 0  # nothing unreachable was left for the cyclic collector
+    finally:
+        gc.enable()
+
+
+def test_gc_paused_nests_across_threads_and_restores_the_collector():
+    assert gc.isenabled()
+    inner = threading.Event()
+    seen: list[bool] = []
+
+    def other() -> None:
+        with gc_paused():
+            inner.wait(5)
+            seen.append(gc.isenabled())
+
+    thread = threading.Thread(target=other)
+    try:
+        with gc_paused():
+            thread.start()
+            assert not gc.isenabled()
+        assert not gc.isenabled()  # the other thread's pause is still open
+        inner.set()
+        thread.join(5)
+        assert seen == [False] and gc.isenabled() and gc.get_freeze_count() > 0
+    finally:
+        gc.unfreeze()
+
+
+# -- re-planning in a worker ------------------------------------------------------------------
+
+@sync
+async def test_replanning_after_an_edit_runs_in_a_worker_and_the_ui_stays_live(tmp_path,
+                                                                               held_plan):
+    path = copy_example(tmp_path)
+    app = make_app(path)
+    async with app.run_test(size=SMALL) as pilot:
+        await opened(pilot)
+        table = app.main_screen().table
+        before = next(r for r in table.records if r["id"] == "KL-03")
+        held_plan.armed = True
+        text = edit.add_reading(app.session.text, "KL-03", AS_OF, 74000)
+        app.apply_edit(text, "Reading added to KL-03")
+        await until(pilot, lambda: held_plan.threads, what="the re-plan to start")
+        assert held_plan.threads[0] is not threading.main_thread()
+        assert app.planning and "re-planning" in text_of(app.screen.query_one("#title-left"))
+        assert next(r for r in table.records if r["id"] == "KL-03") == before  # last plan kept
+        await pilot.press("down")  # the list still answers
+        assert table.cursor_row == 1
+        on = table.current_id
+        # A second edit while the first plan is held: only the newest plan is kept.
+        text = edit.add_reading(app.session.text, "KL-03", AS_OF + dt.timedelta(days=1), 74100)
+        app.apply_edit(text, "Reading added to KL-03")
+        await until(pilot, lambda: len(held_plan.threads) == 2, what="the second re-plan")
+        held_plan.release.set()
+        await until(pilot, lambda: not app.planning, what="the re-plan")
+        expected = export.assessment_records(assess_fleet_plan(app.session.fleet, AS_OF))
+        assert table.records == expected and table.records is app.session.records()
+        kl03 = next(r for r in table.records if r["id"] == "KL-03")
+        assert kl03 != before
+        assert "re-planning" not in text_of(app.screen.query_one("#title-left"))
+        assert table.current_id == on  # the cursor stays on its vehicle
+
+
+@sync
+async def test_changing_the_date_of_a_big_fleet_replans_in_the_worker(big_fleet):
+    app = make_app(big_fleet)
+    async with app.run_test(size=LARGE) as pilot:
+        await opened(pilot)
+        assert app.session.last_plan_seconds > app_module.QUICK_PLAN  # 3,000 vehicles
+        later = AS_OF + dt.timedelta(days=200)
+        app.session.as_of = later
+        app.refresh_views()
+        assert app.planning  # not planned on the UI thread
+        await until(pilot, lambda: not app.planning, tries=400, what="the re-plan")
+        expected = export.assessment_records(assess_fleet_plan(app.session.fleet, later))
+        assert app.main_screen().table.records == expected
+        assert "Plan date 2027-06-25" in text_of(app.screen.query_one("#summary"))
 
 
 # -- the table at a few thousand vehicles -----------------------------------------------------

@@ -8,17 +8,20 @@ is always passed in; nothing under `planner.tui` reads the clock except `planner
 from __future__ import annotations
 
 import datetime as dt
+import gc
 from pathlib import Path
 from typing import Any
 
 from textual.app import App
 from textual.screen import Screen
 
+from planner.errors import PlannerError
 from planner.tui.actions import BY_ID, bindings, first_key, scope_of
 from planner.tui.app_edit import EditActions
 from planner.tui.app_file import FileActions
 from planner.tui.app_import import ImportActions
 from planner.tui.app_week import WeekActions
+from planner.tui.background import gc_paused, internal_error, off_thread
 from planner.tui.commands import ActionCommands
 from planner.tui.look import STYLES, THEME
 from planner.tui.screens.detail import DetailScreen
@@ -26,11 +29,15 @@ from planner.tui.screens.dialogs import FilterDialog, PickDialog
 from planner.tui.screens.error import ErrorScreen
 from planner.tui.screens.form import FormScreen
 from planner.tui.screens.help import AboutScreen, HelpScreen
-from planner.tui.screens.main import MainScreen
-from planner.tui.session import Session
+from planner.tui.screens.main import LoadingScreen, MainScreen
+from planner.tui.session import Reading, Session
 from planner.tui.view import TRIAGE, View
 from planner.tui.widgets.bars import TitleBar
-from planner.tui.widgets.fleet_table import next_sort
+from planner.tui.widgets.fleet_table import TableRows, next_sort, prepare_rows
+
+# A re-plan is done at once when the last plan took less than this (a small fleet: the views
+# change with no "re-planning" flash); otherwise in a worker while the UI stays live.
+QUICK_PLAN = 0.05  # seconds
 
 
 class BeltplanApp(EditActions, FileActions, ImportActions, WeekActions, App[None],
@@ -47,18 +54,26 @@ class BeltplanApp(EditActions, FileActions, ImportActions, WeekActions, App[None
         super().__init__(**kwargs)
         self.session = session
         self.last_message = ""  # the last thing the app told the user (tests read it)
+        self.reading = False  # the file is being read in a worker
+        self.planning = False  # the current text is being planned in a worker
+        self._rows: TableRows | None = None  # the fleet table's cells for the latest plan
 
     # -- start and views ------------------------------------------------------------------
     def on_mount(self) -> None:
         self.register_theme(THEME)
         self.theme = THEME.name
-        self.session.load()
-        self.push_screen(MainScreen() if self.session.ok else ErrorScreen())
+        self.push_screen(LoadingScreen())
+        self.call_after_refresh(self.read_in_background)  # the loading view first, then work
+
+    def on_unmount(self) -> None:
+        gc.unfreeze()  # what the reads froze can be collected once the app is gone
 
     def check_action(self, action: str, parameters: tuple[object, ...]) -> bool | None:
         spec = BY_ID.get(action)
         if spec is None or spec.target != "app":
             return True
+        if self.reading and (spec.group == "Edit" or spec.id == "save"):
+            return False  # the text is about to be replaced by the file's
         return scope_of(self.screen) in spec.scopes
 
     def say(self, message: str, severity: str = "information") -> None:
@@ -68,15 +83,109 @@ class BeltplanApp(EditActions, FileActions, ImportActions, WeekActions, App[None
 
     def show_title(self, bar: TitleBar) -> None:
         s = self.session
+        busy = "reading the file …" if self.reading else "re-planning …" if self.planning else ""
         bar.show(s.name if s.ok else str(s.path), str(s.path), len(s.history), s.dirty,
-                 loaded=s.ok)
+                 extra=busy, loaded=s.ok)
+
+    def _show_titles(self) -> None:
+        for screen in self.screen_stack:
+            for bar in screen.query(TitleBar):
+                self.show_title(bar)
 
     def refresh_views(self) -> None:
-        """The text or the date changed: every open view redraws from the session."""
+        """The text or the date changed: every open view redraws from the session.
+
+        When the plan is not at hand and the last one took a while, it is made in a worker;
+        until it is ready the views keep the last plan and the title says "re-planning".
+        """
+        session = self.session
+        if session.ok and not session.planned and session.last_plan_seconds > QUICK_PLAN:
+            self.plan_in_background()
+        else:
+            self._redraw()
+
+    def _redraw(self) -> None:
         for screen in self.screen_stack:
             refresh = getattr(screen, "refresh_from_session", None)
             if refresh is not None:
                 refresh()
+
+    def table_rows(self) -> TableRows:
+        """The fleet table's cells for the current plan (prepared by the worker if it ran)."""
+        records = self.session.records()
+        rows = self._rows
+        if rows is None or rows.records is not records:
+            rows = self._rows = prepare_rows(records, self.session.columns(), rows)
+        return rows
+
+    # -- work off the UI thread (Textual workers; a newer request cancels an older one) ------
+    def read_in_background(self, again: bool = False) -> None:
+        """Read and plan the file in a worker, then show the list or the error view."""
+        self.workers.cancel_group(self, "plan")
+        self.reading, self.planning = True, False
+        self._show_titles()
+        self.run_worker(self._read_worker(again), group="read", exclusive=True, exit_on_error=False)
+
+    async def _read_worker(self, again: bool) -> None:
+        session, previous = self.session, self._rows
+
+        def work() -> tuple[Reading, TableRows | None]:
+            with gc_paused():
+                reading = session.read()
+                planned = reading.planned
+                if planned is None:
+                    return reading, None
+                return reading, prepare_rows(planned.records, planned.columns(), previous)
+
+        try:
+            reading, rows = await off_thread(work)
+        except Exception as exc:  # a bug, not the file: the error view says so
+            self.log.error(f"reading {session.path} failed", exc)
+            reading, rows = Reading(None, internal_error(f"reading {session.path}", exc)), None
+        self.reading = False
+        session.adopt(reading)
+        self._rows = rows
+        await self.show_base()
+        self._show_titles()
+        if again:
+            self.say(f"Read {session.path} again." if session.ok else
+                     f"{session.path} still has problems.",
+                     "information" if session.ok else "error")
+
+    def plan_in_background(self) -> None:
+        """Plan the current text and date in a worker; the views redraw when it is done."""
+        self.planning = True
+        self._show_titles()
+        self.run_worker(self._plan_worker(), group="plan", exclusive=True, exit_on_error=False)
+
+    async def _plan_worker(self) -> None:
+        session, previous = self.session, self._rows
+        job = session.plan_job()
+
+        def work() -> tuple[Any, TableRows]:
+            with gc_paused():
+                planned = job()
+                return planned, prepare_rows(planned.records, planned.columns(), previous)
+
+        try:
+            planned, rows = await off_thread(work)
+        except Exception as exc:  # the error view says why (a bug, unless a PlannerError)
+            self.log.error("planning failed", exc)
+            self.planning = False
+            session.error = exc if isinstance(exc, PlannerError) else \
+                internal_error("planning", exc)
+            while len(self.screen_stack) > 2:
+                await self.pop_screen()
+            await self.switch_screen(ErrorScreen())
+            return
+        self.planning = False
+        if session.store(planned):
+            self._rows = rows
+        self.refresh_views()  # the plan is at hand now, unless the text moved on meanwhile
+
+    async def reload_now(self) -> None:
+        """Read the file again, in a worker (the file actions' "reload" comes here)."""
+        self.read_in_background(again=True)
 
     def main_screen(self) -> MainScreen | None:
         return next((s for s in self.screen_stack if isinstance(s, MainScreen)), None)

@@ -4,13 +4,18 @@ No Textual here: the session is the UI's model and is tested on its own. It hold
 user is editing (with an undo stack of earlier texts), parses every candidate text with the
 loader's own rules, saves through `fileio.save_fleet_text` and asks the engine for the plan.
 It never decides a planning rule itself.
+
+Reading a big file and planning it take seconds, so both come in two halves: `read()` and
+`plan_job()` do the work without touching the session (the UI runs them in a worker thread),
+and `adopt()` and `store()` make the result current (on the UI thread, in one step).
 """
 
 from __future__ import annotations
 
 import datetime as dt
+import time
 from collections import Counter
-from collections.abc import Sequence
+from collections.abc import Callable, Sequence
 from dataclasses import dataclass
 from pathlib import Path
 from typing import Any
@@ -30,6 +35,37 @@ from planner.plan import Status, VehiclePlan
 from planner.risk import FleetAssessment, assess_fleet_plan
 
 EXPORT_FORMATS: dict[str, str] = {"csv": "csv", "json": "json", "markdown": "md"}
+
+
+@dataclass(frozen=True)
+class Planned:
+    """The plan of one fleet on one date, and its export records (triage order)."""
+
+    fleet: Fleet
+    as_of: dt.date
+    assessment: FleetAssessment
+    records: list[dict[str, Any]]
+    seconds: float  # how long planning took (the UI re-plans in a worker when it is slow)
+
+    def columns(self) -> list[tuple[str, str]]:
+        return export.table_columns(self.fleet.unit, self.assessment.model.horizon_days)
+
+
+def plan(fleet: Fleet, as_of: dt.date) -> Planned:
+    """Plan `fleet` on `as_of` (pure: safe in a worker thread)."""
+    start = time.perf_counter()
+    assessment = assess_fleet_plan(fleet, as_of)
+    records = export.assessment_records(assessment)
+    return Planned(fleet, as_of, assessment, records, time.perf_counter() - start)
+
+
+@dataclass(frozen=True)
+class Reading:
+    """What reading the file gave: the file, or why it cannot be used; perhaps its plan."""
+
+    loaded: LoadedFleet | None
+    error: PlannerError | None = None
+    planned: Planned | None = None
 
 
 @dataclass(frozen=True)
@@ -53,22 +89,34 @@ class Session:
         self.text = ""
         self.fleet: Fleet | None = None
         self.history: list[Change] = []
-        self._cache: tuple[Fleet, dt.date, FleetAssessment, list[dict[str, Any]]] | None = None
+        self._cache: Planned | None = None
         self._checked: tuple[str, Fleet] | None = None  # the last text `check` accepted
 
     # -- reading ------------------------------------------------------------------------------
     def load(self) -> bool:
         """(Re)read the file from disk, dropping edits; False (and `error`) when it is bad."""
+        return self.adopt(self.read(with_plan=False))
+
+    def read(self, with_plan: bool = True) -> Reading:
+        """Read (and plan) the file without changing the session: safe in a worker thread."""
+        try:
+            loaded = load_fleet(self.path)
+            return Reading(loaded, None, plan(loaded.fleet, self.as_of) if with_plan else None)
+        except PlannerError as err:
+            return Reading(None, err)
+
+    def adopt(self, reading: Reading) -> bool:
+        """Make what `read` gave current, dropping edits; False (and `error`) when bad."""
         self.history.clear()
         self._cache = None
-        try:
-            self.loaded = load_fleet(self.path)
-        except PlannerError as err:
-            self.loaded, self.fleet, self.text, self.error = None, None, "", err
+        self.loaded, self.error = reading.loaded, reading.error
+        if reading.loaded is None:
+            self.fleet, self.text = None, ""
             return False
-        self.error = None
-        self.text = self.loaded.text
-        self.fleet = self.loaded.fleet
+        self.text = reading.loaded.text
+        self.fleet = reading.loaded.fleet
+        if reading.planned is not None:
+            self.store(reading.planned)
         return True
 
     @property
@@ -144,12 +192,34 @@ class Session:
 
     def _computed(self) -> tuple[FleetAssessment, list[dict[str, Any]]]:
         assert self.fleet is not None
+        if not self.planned:
+            self._cache = plan(self.fleet, self.as_of)
+        assert self._cache is not None
+        return self._cache.assessment, self._cache.records
+
+    @property
+    def planned(self) -> bool:
+        """True when the plan of the current text and date is at hand (no work to get it)."""
         cache = self._cache
-        if cache is None or cache[0] is not self.fleet or cache[1] != self.as_of:
-            assessment = assess_fleet_plan(self.fleet, self.as_of)
-            cache = (self.fleet, self.as_of, assessment, export.assessment_records(assessment))
-            self._cache = cache
-        return cache[2], cache[3]
+        return cache is not None and cache.fleet is self.fleet and cache.as_of == self.as_of
+
+    @property
+    def last_plan_seconds(self) -> float:
+        """How long the last plan took (0 before the first)."""
+        return self._cache.seconds if self._cache is not None else 0.0
+
+    def plan_job(self) -> Callable[[], Planned]:
+        """The plan of the current text and date, as work for a worker thread; `store` it."""
+        assert self.fleet is not None
+        fleet, as_of = self.fleet, self.as_of
+        return lambda: plan(fleet, as_of)
+
+    def store(self, planned: Planned) -> bool:
+        """Keep a plan made by `plan_job`; False (nothing kept) when the text or date moved on."""
+        if planned.fleet is not self.fleet or planned.as_of != self.as_of:
+            return False
+        self._cache = planned
+        return True
 
     def plan_of(self, vehicle_id: str) -> VehiclePlan | None:
         for plan in self.assessment().plans:
@@ -159,7 +229,9 @@ class Session:
 
     def columns(self) -> list[tuple[str, str]]:
         assert self.fleet is not None
-        return export.table_columns(self.fleet.unit, self.assessment().model.horizon_days)
+        self._computed()
+        assert self._cache is not None
+        return self._cache.columns()
 
     # -- exporting ----------------------------------------------------------------------------
     def default_export_path(self, fmt: str) -> Path:

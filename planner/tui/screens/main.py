@@ -1,7 +1,11 @@
-"""The main view: summary, find box, the fleet table in triage order, the highlighted row."""
+"""The main view: summary, find box, the fleet table in triage order, the highlighted row.
+
+Also the view shown while the file is read and planned in the background (`LoadingScreen`).
+"""
 
 from __future__ import annotations
 
+import time
 from typing import TYPE_CHECKING, Any
 
 from rich.text import Text
@@ -10,7 +14,7 @@ from textual.containers import Horizontal
 from textual.screen import Screen
 from textual.widgets import Input, Label, Static
 
-from planner.tui.actions import MAIN
+from planner.tui.actions import ERROR, MAIN
 from planner.tui.look import DIM, STYLES, literal
 from planner.tui.view import View, describe
 from planner.tui.widgets.bars import KeyStrip, SummaryLine, TitleBar
@@ -57,7 +61,7 @@ class MainScreen(Screen):
         if not session.ok:
             return
         self.beltapp.show_title(self.query_one(TitleBar))
-        self.table.set_records(session.records(), session.columns())
+        self.table.show_rows(self.beltapp.table_rows())
         self._after_relist()
 
     def set_view(self, view: View) -> None:
@@ -119,3 +123,37 @@ class MainScreen(Screen):
 
     def on_resize(self, event: Any) -> None:
         self.call_after_refresh(self._after_relist)
+
+
+class LoadingScreen(Screen):
+    """Shown while the fleet file is read and planned in a worker; the UI stays live.
+
+    The seconds so far tick twice a second: cheap, unlike a spinner's frames, which would take
+    turns with the worker for the interpreter many times a second.
+    """
+
+    SCOPE = ERROR  # nothing is loaded yet: the error view's keys apply (reload, help, quit)
+    DEFAULT_CSS = "LoadingScreen #loading-what { height: auto; padding: 1 2; }"
+
+    def compose(self) -> ComposeResult:
+        yield TitleBar()
+        yield Static(id="loading-what", markup=False)
+        yield KeyStrip(ERROR)
+
+    @property
+    def beltapp(self) -> BeltplanApp:
+        return self.app  # type: ignore[return-value]
+
+    def on_mount(self) -> None:
+        self._started = time.monotonic()  # a stopwatch, not the date
+        self.refresh_from_session()
+        self.set_interval(0.5, self.refresh_from_session)
+
+    def refresh_from_session(self) -> None:
+        session = self.beltapp.session
+        self.beltapp.show_title(self.query_one(TitleBar))
+        words = f"Reading {session.path} and planning as of {session.as_of} …"
+        seconds = time.monotonic() - self._started
+        if seconds >= 1:
+            words += f" {seconds:.0f} s"
+        self.query_one("#loading-what", Static).update(Text(words, style=DIM))
