@@ -10,6 +10,7 @@ import asyncio
 import datetime as dt
 import gc
 import threading
+import weakref
 from collections.abc import Callable
 from pathlib import Path
 from typing import Any
@@ -226,6 +227,28 @@ def test_gc_paused_nests_across_threads_and_restores_the_collector():
         inner.set()
         thread.join(5)
         assert seen == [False] and gc.isenabled() and gc.get_freeze_count() > 0
+    finally:
+        gc.unfreeze()
+
+
+def test_a_read_first_reclaims_the_cycles_an_earlier_freeze_kept():
+    class Node:
+        pass
+
+    node = Node()
+    node.me = node  # a cycle: only the cyclic collector frees it
+    gone = weakref.ref(node)
+    try:
+        gc.freeze()
+        del node
+        gc.collect()
+        assert gone() is not None  # frozen: out of the collector's sight
+        with gc_paused():
+            pass
+        assert gone() is not None  # a re-plan's pause does not collect
+        with gc_paused(reclaim=True):
+            pass
+        assert gone() is None
     finally:
         gc.unfreeze()
 

@@ -130,7 +130,7 @@ class BeltplanApp(EditActions, FileActions, ImportActions, WeekActions, App[None
         session, previous = self.session, self._rows
 
         def work() -> tuple[Reading, TableRows | None]:
-            with gc_paused():
+            with gc_paused(reclaim=True):
                 reading = session.read()
                 planned = reading.planned
                 if planned is None:

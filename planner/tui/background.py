@@ -17,25 +17,27 @@ from planner.errors import PlannerError
 
 T = TypeVar("T")
 
-RECLAIM_EVERY = 16  # freezes between two full collections that reclaim frozen garbage
-
 _gc_lock = threading.Lock()
-_gc = {"pauses": 0, "was_enabled": False, "freezes": 0}
+_gc = {"pauses": 0, "was_enabled": False}
 
 
 @contextmanager
-def gc_paused() -> Iterator[None]:
+def gc_paused(reclaim: bool = False) -> Iterator[None]:
     """No cyclic garbage collection meanwhile; then what was built is frozen out of later ones.
 
     Reading or planning a fleet builds half a million objects that live as long as the plan.
     Each full collection walks all of them while holding the interpreter (a quarter of a second
-    at 10,000 vehicles), so the UI waits: collections during a read add a quarter to it, and the
+    at 10,000 vehicles), so the UI waits: collections during a read add a tenth to it, and the
     ones a re-plan sets off stall the UI for up to half a second. Frozen, they are never walked;
     the read, the plan and the table's cells hold no reference cycles (tests/test_tui_perf.py
     checks), so refcounting alone frees them once dropped. What a freeze keeps from the cyclic
-    collector is any UI object alive then and dropped later (a closed form, old cache entries):
-    every RECLAIM_EVERY freezes, one full collection reclaims those first.
+    collector is a UI object alive then and dropped later in a cycle (a closed form, old cache
+    entries; about a thousand objects a re-plan): `reclaim` (a read, which takes seconds anyway)
+    first unfreezes and collects everything.
     """
+    if reclaim:
+        gc.unfreeze()
+        gc.collect()
     with _gc_lock:
         if _gc["pauses"] == 0:
             _gc["was_enabled"] = gc.isenabled()
@@ -47,10 +49,6 @@ def gc_paused() -> Iterator[None]:
         with _gc_lock:
             _gc["pauses"] -= 1
             if _gc["pauses"] == 0:
-                _gc["freezes"] += 1
-                if _gc["freezes"] % RECLAIM_EVERY == 0:
-                    gc.unfreeze()
-                    gc.collect()
                 gc.freeze()
                 if _gc["was_enabled"]:
                     gc.enable()
