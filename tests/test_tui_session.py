@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import datetime as dt
+from pathlib import Path
 
 import pytest
 
@@ -87,6 +88,20 @@ def test_export_paths(session, tmp_path):
         session.export(session.records(), "json", session.path)
     with pytest.raises(PlannerError, match="unknown export format"):
         session.export_text([], "ics")
+
+
+def test_default_export_lands_beside_a_fleet_file_opened_by_a_relative_path(tmp_path,
+                                                                             monkeypatch):
+    # The README opens `fleet_examples/courier_fleet.toml`: the export must not go to
+    # fleet_examples/fleet_examples/….
+    (tmp_path / "sub").mkdir()
+    (tmp_path / "sub" / "f.toml").write_text(Path(EXAMPLE).read_text(encoding="utf-8"))
+    monkeypatch.chdir(tmp_path)
+    s = Session(Path("sub/f.toml"), AS_OF)
+    assert s.load()
+    out = s.export(s.records(), "csv", s.default_export_path("csv"))
+    assert out.resolve() == (tmp_path / "sub" / "f-plan-2026-12-07.csv").resolve()
+    assert out.exists()
 
 
 # -- the table's view -------------------------------------------------------------------------

@@ -235,8 +235,8 @@ class Session:
 
     # -- exporting ----------------------------------------------------------------------------
     def default_export_path(self, fmt: str) -> Path:
-        stem = f"{self.path.stem}-plan-{self.as_of.isoformat()}"
-        return self.path.with_name(f"{stem}.{EXPORT_FORMATS[fmt]}")
+        """A bare file name: `export` puts a relative name beside the fleet file."""
+        return Path(f"{self.path.stem}-plan-{self.as_of.isoformat()}.{EXPORT_FORMATS[fmt]}")
 
     def export_text(self, records: Sequence[dict[str, Any]], fmt: str) -> str:
         """The same writers as `beltplan list --format …`."""
