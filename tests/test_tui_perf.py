@@ -115,7 +115,7 @@ async def test_a_good_file_is_read_in_a_worker_behind_a_live_loading_view(held_r
         assert held_read.threads[0] is not threading.main_thread()
         assert screen_name(app) == "LoadingScreen"
         assert "Reading" in text_of(app.screen.query_one("#loading-what"))
-        assert "reading the file" in text_of(app.screen.query_one("#title-left"))
+        assert "reading" in text_of(app.screen.query_one("#title-right"))
         # The UI answers while the file is read: help opens and closes, editing keys do not.
         await pilot.press("question_mark")
         await until(pilot, lambda: screen_name(app) == "HelpScreen", what="help")
@@ -128,7 +128,7 @@ async def test_a_good_file_is_read_in_a_worker_behind_a_live_loading_view(held_r
         assert listed_ids(app) == engine_ids(EXAMPLE)
         summary = text_of(app.screen.query_one("#summary"))
         assert "16 vehicles: " in summary and "4 overdue" in summary
-        assert "reading" not in text_of(app.screen.query_one("#title-left"))
+        assert "reading" not in text_of(app.screen.query_one("#title-right"))
 
 
 @sync
@@ -269,7 +269,8 @@ async def test_replanning_after_an_edit_runs_in_a_worker_and_the_ui_stays_live(t
         app.apply_edit(text, "Reading added to KL-03")
         await until(pilot, lambda: held_plan.threads, what="the re-plan to start")
         assert held_plan.threads[0] is not threading.main_thread()
-        assert app.planning and "re-planning" in text_of(app.screen.query_one("#title-left"))
+        assert app.planning and "re-planning" in text_of(app.screen.query_one("#title-right"))
+        assert "1 unsaved change" in text_of(app.screen.query_one("#title-right"))
         assert next(r for r in table.records if r["id"] == "KL-03") == before  # last plan kept
         await pilot.press("down")  # the list still answers
         assert table.cursor_row == 1
@@ -284,7 +285,7 @@ async def test_replanning_after_an_edit_runs_in_a_worker_and_the_ui_stays_live(t
         assert table.records == expected and table.records is app.session.records()
         kl03 = next(r for r in table.records if r["id"] == "KL-03")
         assert kl03 != before
-        assert "re-planning" not in text_of(app.screen.query_one("#title-left"))
+        assert "re-planning" not in text_of(app.screen.query_one("#title-right"))
         assert table.current_id == on  # the cursor stays on its vehicle
 
 

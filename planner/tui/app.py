@@ -83,9 +83,9 @@ class BeltplanApp(EditActions, FileActions, ImportActions, WeekActions, App[None
 
     def show_title(self, bar: TitleBar) -> None:
         s = self.session
-        busy = "reading the file …" if self.reading else "re-planning …" if self.planning else ""
+        busy = "reading …" if self.reading else "re-planning …" if self.planning else ""
         bar.show(s.name if s.ok else str(s.path), str(s.path), len(s.history), s.dirty,
-                 extra=busy, loaded=s.ok)
+                 loaded=s.ok, busy=busy)
 
     def _show_titles(self) -> None:
         for screen in self.screen_stack:

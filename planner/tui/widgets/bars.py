@@ -31,7 +31,8 @@ class TitleBar(Horizontal):
         yield Static(id="title-right", markup=False)
 
     def show(self, name: str, file: str, changes: int, dirty: bool, extra: str = "",
-             loaded: bool = True) -> None:
+             loaded: bool = True, busy: str = "") -> None:
+        """`busy` (reading, re-planning) goes on the right, where a long path cannot hide it."""
         left = literal(" beltplan ", ACCENT)
         left.append("▸ ", style=DIM)
         left.append(literal(name, "bold"))
@@ -41,13 +42,15 @@ class TitleBar(Horizontal):
             left.append(f"  {extra}")
         self.query_one("#title-left", Static).update(left)
         right = self.query_one("#title-right", Static)
+        state = literal(f"{busy}  ", ACCENT) if busy else Text()
         if dirty:
             word = "change" if changes == 1 else "changes"
-            right.update(Text(f"● {changes} unsaved {word}" if changes else "● unsaved"))
+            state.append(f"● {changes} unsaved {word}" if changes else "● unsaved")
         elif not loaded:
-            right.update(Text("not loaded", style=DIM))
+            state.append("not loaded", style=DIM)
         else:
-            right.update(Text("saved", style=DIM))
+            state.append("saved", style=DIM)
+        right.update(state)
         right.set_class(dirty, "-dirty")
 
 
