@@ -120,31 +120,24 @@ class LazyTable(ScrollView, can_focus=True):
     }
     """
 
-    class RowHighlighted(Message):
+    class _RowMessage(Message):
+        """A message about one row: the table, the cursor's row and the row's key."""
+
+        def __init__(self, table: LazyTable, cursor_row: int, key: str) -> None:
+            super().__init__()
+            self.table = table
+            self.cursor_row = cursor_row
+            self.key = key
+
+        @property
+        def control(self) -> LazyTable:
+            return self.table
+
+    class RowHighlighted(_RowMessage):
         """The cursor is on a new row (or a new row is under it)."""
 
-        def __init__(self, table: LazyTable, cursor_row: int, key: str) -> None:
-            super().__init__()
-            self.table = table
-            self.cursor_row = cursor_row
-            self.key = key
-
-        @property
-        def control(self) -> LazyTable:
-            return self.table
-
-    class RowSelected(Message):
+    class RowSelected(_RowMessage):
         """Enter on the cursor's row, or a click on it."""
-
-        def __init__(self, table: LazyTable, cursor_row: int, key: str) -> None:
-            super().__init__()
-            self.table = table
-            self.cursor_row = cursor_row
-            self.key = key
-
-        @property
-        def control(self) -> LazyTable:
-            return self.table
 
     class HeaderSelected(Message):
         """A click on a column heading."""
