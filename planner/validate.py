@@ -341,10 +341,7 @@ def _type_problems(value: Any, kind: Kind, path: Path, vehicle: str | None,
             check = checks.get(key)
             if check is None:
                 continue
-            fits = check[1]
-            if fits is None or type(item) not in fits or (
-                    type(item) is float and not math.isfinite(item)) or (
-                    type(item) is str and not item.isprintable()):
+            if not _plain(item, check[1]):
                 _type_problems(item, check[0], path + (key,), vehicle, out)
     elif tag == "array" and type(value) is list:
         if isinstance(inner, tuple) and inner[0] == "table":
@@ -369,12 +366,16 @@ def _fits_all(table: dict[str, Any], checks: dict[str, tuple[Kind, Any]]) -> boo
         check = checks.get(key)
         if check is None:
             continue
-        fits = check[1]
-        if fits is None or type(item) not in fits or (
-                type(item) is float and not math.isfinite(item)) or (
-                type(item) is str and not item.isprintable()):
+        if not _plain(item, check[1]):
             return False
     return True
+
+
+def _plain(item: Any, fits: tuple[type, ...] | None) -> bool:
+    """A scalar of an allowed type that needs no closer look (finite, printable)."""
+    return not (fits is None or type(item) not in fits
+                or (type(item) is float and not math.isfinite(item))
+                or (type(item) is str and not item.isprintable()))
 
 
 _CONTROL = CONTROL_CHARACTER

@@ -7,6 +7,7 @@ import json
 
 from planner import export
 from planner.cli.common import add_as_of, as_of_or_today, emit, load
+from planner.reliability import weibull_cdf
 from planner.risk import FLEET_FIT, fitted_model, replacement_points, risk_model
 
 
@@ -104,6 +105,4 @@ def _pct(u: float | None) -> str:
 
 
 def _share(beta: float, eta: float) -> float:
-    from planner.reliability import weibull_cdf
-
     return weibull_cdf(1.0, beta, eta)
