@@ -202,6 +202,9 @@ def test_reads_plans_and_cells_hold_no_reference_cycles(big_fleet):
         rows = prepare_rows(reading.planned.records, reading.planned.columns())
         later = plan(reading.loaded.fleet, AS_OF + dt.timedelta(days=30))
         again = prepare_rows(later.records, later.columns(), rows)
+        for rec in later.records[:60]:  # the rows a screen draws: cells built, some kept
+            rows.row(rec["id"])
+            again.row(rec["id"])
         del reading, rows, later, again
         assert gc.collect() == 0  # nothing unreachable was left for the cyclic collector
     finally:
@@ -397,7 +400,7 @@ def test_prepared_cells_are_the_columns_cells_and_survive_an_unchanged_vehicle(b
     columns = cols.columns_for(table_columns, big_records)
     assert rows.records is big_records and rows.columns == columns
     for rec in big_records[:200] + big_records[-200:]:
-        assert [rows.cells[rec["id"]][c.field] for c in columns] == \
+        assert [rows.row(rec["id"])[c.field] for c in columns] == \
             cols.row_cells(rec, columns)
     assert rows.widths == cols.natural_widths(
         columns, [{c.field: t for c, t in zip(columns, cols.row_cells(r, columns),
@@ -405,9 +408,28 @@ def test_prepared_cells_are_the_columns_cells_and_survive_an_unchanged_vehicle(b
     changed = [dict(r) for r in big_records]
     changed[5]["days_remaining"] = -999
     again = prepare_rows(changed, table_columns, rows)
-    assert again.cells[changed[4]["id"]] is rows.cells[changed[4]["id"]]
-    assert again.cells[changed[5]["id"]] is not rows.cells[changed[5]["id"]]
-    assert again.cells[changed[5]["id"]]["days_remaining"].plain == "-999"
+    assert again.row(changed[4]["id"]) is rows.row(changed[4]["id"])
+    assert again.row(changed[5]["id"]) is not rows.row(changed[5]["id"])
+    assert again.row(changed[5]["id"])["days_remaining"].plain == "-999"
+
+
+def test_widths_without_cells_are_the_widths_of_the_cells(big_records):
+    """The widths come from distinct values; they must be those of the cells drawn later,
+    also for labels of wide characters cut at the label width, and unknown values."""
+    table_columns = export.table_columns("km")
+    odd = [dict(r) for r in big_records[:40]]
+    odd[0]["label"] = "東京配送センター第二号車両予備機" * 2  # 2 cells a character, cut
+    odd[1]["label"] = "x" * cols.LABEL_WIDTH
+    odd[2]["label"] = "ü" * (cols.LABEL_WIDTH + 5)
+    odd[3]["label"] = "a東" * 12 + "b"  # the cut falls in the middle of a wide character
+    for name in ("days_remaining", "expected_loss", "p_fail_horizon", "due_date"):
+        odd[4][name] = None
+    odd[5]["distance_remaining"] = -1_234_567
+    for records in (big_records, odd):
+        columns = cols.columns_for(table_columns, records)
+        cells = [{c.field: t for c, t in zip(columns, cols.row_cells(r, columns), strict=True)}
+                 for r in records]
+        assert cols.natural_widths_of(columns, records) == cols.natural_widths(columns, cells)
 
 
 # -- the lazy table draws what Textual's DataTable draws --------------------------------------

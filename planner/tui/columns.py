@@ -12,6 +12,7 @@ from collections.abc import Iterable, Sequence
 from dataclasses import dataclass
 from typing import Any
 
+from rich.cells import cell_len
 from rich.text import Text
 
 from planner import export
@@ -77,6 +78,45 @@ def natural_widths(columns: Sequence[Column], rows: Iterable[dict[str, Text]]) -
         for name, text in row.items():
             widths[name] = max(widths[name], text.cell_len)
     return widths
+
+
+def natural_widths_of(columns: Sequence[Column],
+                      records: Sequence[dict[str, Any]]) -> dict[str, int]:
+    """`natural_widths` of the cells of `records`, without building them.
+
+    A cell's width is that of its text (`cell` only styles it), so each distinct value of a
+    column is measured once: a status or a date repeats thousands of times.
+    """
+    widths = {}
+    for col in columns:
+        name = col.field
+        widest = len(col.heading)
+        seen: set[Any] = set()
+        for rec in records:
+            value = rec.get(name)
+            try:
+                if value in seen:
+                    continue
+                seen.add(value)
+            except TypeError:  # a list (never shown in the table today): measure it each time
+                pass
+            widest = max(widest, cell_width(value, name))
+        widths[name] = widest
+    return widths
+
+
+def cell_width(value: Any, field: str) -> int:
+    """The width in terminal cells of `cell` for a record whose `field` holds `value`."""
+    if field == "status":
+        return status_text(value).cell_len
+    if field == "consequence":
+        return consequence_text(value).cell_len
+    if value is None:
+        return 1  # "–"
+    width = cell_len(export.display(value, field))
+    if field == "label" and width > LABEL_WIDTH:  # cut with an ellipsis; a wide character
+        return cell({field: value}, field).cell_len  # may leave one cell short
+    return width
 
 
 def fit(columns: Sequence[Column], widths: dict[str, int],

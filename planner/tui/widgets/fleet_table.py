@@ -1,8 +1,8 @@
 """The fleet table: one row per vehicle of the current view, only the rows on screen rendered.
 
-Cells are built once per plan (a new text or planning date), by `prepare_rows`, which can run
-off the UI thread; a vehicle whose record did not change keeps its cells, and equal values share
-one cell. Filtering and sorting only re-list vehicle ids (`view.Listing`); the table renders the
+Each plan's column widths come from `prepare_rows`, which can run off the UI thread; a row's
+cells are built when the row is first drawn (a vehicle whose record did not change keeps its
+cells, and equal values share one cell). Filtering and sorting only re-list vehicle ids (`view.Listing`); the table renders the
 rows that are on screen (`LazyTable`). Columns are rebuilt only when the set that fits the width
 changes. The cursor stays on its vehicle.
 """
@@ -10,7 +10,6 @@ changes. The cursor stays on its vehicle.
 from __future__ import annotations
 
 from collections.abc import Hashable, Sequence
-from dataclasses import dataclass
 from typing import Any
 
 from rich.text import Text
@@ -23,46 +22,71 @@ from planner.tui.widgets.lazy_table import LazyTable, TableColumn
 UNIQUE = frozenset({"id", "label"})  # fields not worth sharing cells for
 
 
-@dataclass(frozen=True)
 class TableRows:
-    """Every vehicle's cells for one plan, and each column's natural width."""
+    """Every vehicle's record for one plan, each column's natural width, and the cells.
 
-    records: list[dict[str, Any]]
-    columns: list[cols.Column]
-    cells: dict[str, dict[str, Text]]
-    widths: dict[str, int]
+    A row's cells are built the first time the table draws it (`row`): opening or re-planning
+    10,000 vehicles formats only the rows on screen. A vehicle whose record did not change
+    since the previous plan keeps its cells (the table keeps their rendering), and a value
+    repeated in a column (a status, a date) is one shared cell, which nothing mutates.
+    """
+
+    def __init__(self, records: list[dict[str, Any]], columns: list[cols.Column],
+                 widths: dict[str, int], previous: TableRows | None = None) -> None:
+        self.records = records
+        self.columns = columns
+        self.widths = widths
+        self._built: dict[str, dict[str, Text]] = {}
+        self._shared: dict[tuple[str, type, Hashable], Text] = {}
+        self._previous = previous if previous is not None and previous.columns == columns \
+            else None
+        if previous is not None:
+            previous._previous = None  # one plan back is enough: no chain of old plans
+        self._by_id: dict[str, dict[str, Any]] | None = None
+
+    def row(self, vehicle_id: str) -> dict[str, Text]:
+        """The cells of one vehicle's row, by field (built on first use, then kept)."""
+        built = self._built.get(vehicle_id)
+        if built is not None:
+            return built
+        rec = self._record(vehicle_id)
+        old = self._previous
+        if old is not None:
+            kept = old._built.get(vehicle_id)
+            if kept is not None and old._record(vehicle_id) == rec:
+                self._built[vehicle_id] = kept
+                return kept
+        row: dict[str, Text] = {}
+        shared = self._shared
+        for col in self.columns:
+            value = rec.get(col.field)
+            if col.field in UNIQUE or not isinstance(value, Hashable):
+                row[col.field] = cols.row_cells(rec, (col,))[0]
+                continue
+            key = (col.field, type(value), value)
+            text = shared.get(key)
+            if text is None:
+                text = shared[key] = cols.row_cells(rec, (col,))[0]
+            row[col.field] = text
+        self._built[vehicle_id] = row
+        return row
+
+    def _record(self, vehicle_id: str) -> dict[str, Any]:
+        if self._by_id is None:
+            self._by_id = {r["id"]: r for r in self.records}
+        return self._by_id[vehicle_id]
 
 
 def prepare_rows(records: Sequence[dict[str, Any]], table_columns: Sequence[tuple[str, str]],
                  previous: TableRows | None = None) -> TableRows:
-    """The cells of `records` (pure: safe in a worker thread); unchanged vehicles keep theirs.
+    """The rows of `records` with each column's width (pure: safe in a worker thread).
 
-    Cells are `columns.row_cells`; a value repeated in a column (a status, a date) is built
-    once and shared, which nothing mutates after this.
+    Only the widths are worked out here, from each column's distinct values
+    (`columns.natural_widths_of`); the cells come when the table draws a row.
     """
     records = records if isinstance(records, list) else list(records)  # kept: compared by `is`
     columns = cols.columns_for(table_columns, records)
-    reuse = previous.cells if previous is not None and previous.columns == columns else {}
-    before = {r["id"]: r for r in previous.records} if reuse and previous else {}
-    shared: dict[tuple[str, type, Hashable], Text] = {}
-    cells: dict[str, dict[str, Text]] = {}
-    for rec in records:
-        vid = rec["id"]
-        if vid in reuse and before.get(vid) == rec:
-            cells[vid] = reuse[vid]
-            continue
-        row: dict[str, Text] = {}
-        for col in columns:
-            value = rec.get(col.field)
-            key = (col.field, type(value), value)
-            if col.field in UNIQUE or not isinstance(value, Hashable):
-                row[col.field] = cols.row_cells(rec, (col,))[0]
-            elif (text := shared.get(key)) is not None:
-                row[col.field] = text
-            else:
-                row[col.field] = shared[key] = cols.row_cells(rec, (col,))[0]
-        cells[vid] = row
-    return TableRows(records, columns, cells, cols.natural_widths(columns, cells.values()))
+    return TableRows(records, columns, cols.natural_widths_of(columns, records), previous)
 
 
 class FleetTable(LazyTable):
@@ -77,7 +101,7 @@ class FleetTable(LazyTable):
 
     def __init__(self, **kwargs: Any) -> None:
         super().__init__(cell_padding=cols.CELL_PADDING, **kwargs)
-        self.prepared = TableRows([], [], {}, {})
+        self.prepared = TableRows([], [], {})
         self._listing = Listing([])
         self.shown: list[cols.Column] = []
         self.hidden: list[cols.Column] = []
@@ -165,9 +189,9 @@ class FleetTable(LazyTable):
         for col in self.shown:
             self.set_heading(col.field, self._heading(col))
         fields = [c.field for c in self.shown]
-        cells = self.prepared.cells
+        row = self.prepared.row
         self.set_rows([r["id"] for r in self.listed],
-                      lambda vid: [cells[vid][f] for f in fields], keep=keep)
+                      lambda vid: [row(vid)[f] for f in fields], keep=keep)
 
     def select_id(self, vehicle_id: str) -> bool:
         try:
