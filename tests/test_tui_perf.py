@@ -16,6 +16,8 @@ from pathlib import Path
 from typing import Any
 
 import pytest
+from hypothesis import example, given, settings
+from hypothesis import strategies as st
 from rich.text import Text
 from textual.app import App, ComposeResult
 from textual.widgets import DataTable
@@ -430,6 +432,30 @@ def test_widths_without_cells_are_the_widths_of_the_cells(big_records):
         cells = [{c.field: t for c, t in zip(columns, cols.row_cells(r, columns), strict=True)}
                  for r in records]
         assert cols.natural_widths_of(columns, records) == cols.natural_widths(columns, cells)
+
+
+_NUMBER_FIELDS = {"distance_remaining": st.integers(-10**9, 10**9),
+                  "days_remaining": st.integers(-10**6, 10**6),
+                  "life_used": st.floats(0, 50, allow_nan=False),
+                  "p_fail_horizon": st.floats(0, 1, allow_nan=False),
+                  "p_fail_before_due": st.floats(0, 1, allow_nan=False),
+                  "expected_loss": st.floats(0, 10**9, allow_nan=False),
+                  "daily_distance": st.floats(0, 5000, allow_nan=False)}
+
+
+@settings(max_examples=200, deadline=None)
+@given(st.sampled_from(sorted(_NUMBER_FIELDS)).flatmap(
+    lambda name: st.tuples(st.just(name), st.lists(st.one_of(st.none(), _NUMBER_FIELDS[name]),
+                                                    min_size=1, max_size=30))))
+@example(("p_fail_horizon", [0.0, 0.0005, 0.05]))  # "<0.1 %" is wider than both ends
+def test_widths_of_numbers_are_measured_at_their_extremes(case):
+    """Measuring only the smallest, largest and smallest positive number of a column gives
+    the width of its widest cell (each cell measured here, the reference)."""
+    name, values = case
+    records = [{"id": f"V{k}", name: v} for k, v in enumerate(values)]
+    column = [cols.Column(name, "H")]
+    cells = [{name: cols.cell(r, name)} for r in records]
+    assert cols.natural_widths_of(column, records) == cols.natural_widths(column, cells)
 
 
 # -- the lazy table draws what Textual's DataTable draws --------------------------------------

@@ -84,24 +84,27 @@ def natural_widths_of(columns: Sequence[Column],
                       records: Sequence[dict[str, Any]]) -> dict[str, int]:
     """`natural_widths` of the cells of `records`, without building them.
 
-    A cell's width is that of its text (`cell` only styles it), so each distinct value of a
-    column is measured once: a status or a date repeats thousands of times.
+    A cell's width is that of its text (`cell` only styles it). Text and dates are measured
+    once per distinct value; a number's text (`export.display`: digits, separators, a fixed
+    number of decimals) is never narrower for a value further from zero, so the widest
+    number of a column is its smallest or its largest, or its smallest positive one (shown
+    as "<0.1 %" in a probability column).
     """
     widths = {}
     for col in columns:
         name = col.field
-        widest = len(col.heading)
-        seen: set[Any] = set()
-        for rec in records:
-            value = rec.get(name)
-            try:
-                if value in seen:
-                    continue
-                seen.add(value)
-            except TypeError:  # a list (never shown in the table today): measure it each time
-                pass
-            widest = max(widest, cell_width(value, name))
-        widths[name] = widest
+        values = [rec.get(name) for rec in records]
+        numbers = [v for v in values if isinstance(v, (int, float)) and not isinstance(v, bool)]
+        probes: list[Any] = []
+        if numbers:
+            positive = [v for v in numbers if v > 0]
+            probes += [min(numbers), max(numbers)] + ([min(positive)] if positive else [])
+        others = [v for v in values if not isinstance(v, (int, float)) or isinstance(v, bool)]
+        try:
+            probes += set(others)
+        except TypeError:  # a list (not shown in the table today): measure each one
+            probes += others
+        widths[name] = max([len(col.heading)] + [cell_width(v, name) for v in probes])
     return widths
 
 

@@ -2,9 +2,9 @@
 
 Each plan's column widths come from `prepare_rows`, which can run off the UI thread; a row's
 cells are built when the row is first drawn (a vehicle whose record did not change keeps its
-cells, and equal values share one cell). Filtering and sorting only re-list vehicle ids (`view.Listing`); the table renders the
-rows that are on screen (`LazyTable`). Columns are rebuilt only when the set that fits the width
-changes. The cursor stays on its vehicle.
+cells, and equal values share one cell). Filtering and sorting only re-list vehicle ids
+(`view.Listing`); the table renders the rows that are on screen (`LazyTable`). Columns are
+rebuilt only when the set that fits the width changes. The cursor stays on its vehicle.
 """
 
 from __future__ import annotations
