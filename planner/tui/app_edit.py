@@ -2,14 +2,13 @@
 
 from __future__ import annotations
 
+from types import ModuleType
 from typing import TYPE_CHECKING, Any
 
 from rich.text import Text
 
-from planner import edit
 from planner.errors import PlannerError
 from planner.plan import VehiclePlan
-from planner.tui import form_specs
 from planner.tui.look import literal
 from planner.tui.screens.dialogs import AskDialog, PickDialog
 from planner.tui.screens.form import FormScreen
@@ -18,6 +17,14 @@ if TYPE_CHECKING:
     from planner.tui.app import BeltplanApp
 
 NEW_PROFILE = "\x00new"
+
+
+def _specs() -> ModuleType:
+    """The forms (and the editor they use), imported on first use: opening a fleet, the
+    commonest thing, does not wait for them."""
+    from planner.tui import form_specs
+
+    return form_specs
 
 
 class EditActions:
@@ -48,21 +55,21 @@ class EditActions:
     def action_add_reading(self: BeltplanApp) -> None:
         plan = self._plan()
         if plan is not None:
-            self._form(form_specs.reading_form(self.session, plan),
+            self._form(_specs().reading_form(self.session, plan),
                        f"Reading added to {plan.id}")
 
     def action_record_job(self: BeltplanApp) -> None:
         plan = self._plan()
         if plan is not None:
-            self._form(form_specs.job_form(self.session, plan), f"Belt job recorded on {plan.id}")
+            self._form(_specs().job_form(self.session, plan), f"Belt job recorded on {plan.id}")
 
     def action_add_vehicle(self: BeltplanApp) -> None:
-        self._form(form_specs.vehicle_form(self.session, None), "Vehicle added")
+        self._form(_specs().vehicle_form(self.session, None), "Vehicle added")
 
     def action_edit_vehicle(self: BeltplanApp) -> None:
         plan = self._plan()
         if plan is not None:
-            self._form(form_specs.vehicle_form(self.session, plan.vehicle),
+            self._form(_specs().vehicle_form(self.session, plan.vehicle),
                        f"Vehicle {plan.id} changed")
 
     def action_delete_vehicle(self: BeltplanApp) -> None:
@@ -82,7 +89,9 @@ class EditActions:
             if answer != "delete":
                 return
             try:
-                text = edit.delete_vehicle(self.session.text, plan.id)
+                from planner.edit import delete_vehicle
+
+                text = delete_vehicle(self.session.text, plan.id)
             except PlannerError as err:
                 self.say(err.render(), "error")
                 return
@@ -113,7 +122,7 @@ class EditActions:
                 return
             pid = None if choice == NEW_PROFILE else choice
             what = f"Engine profile {pid} changed" if pid else "Engine profile added"
-            self._form(form_specs.engine_form(self.session, pid), what)
+            self._form(_specs().engine_form(self.session, pid), what)
 
         self.push_screen(PickDialog("Engine profiles", "Choose one to edit, or add one.",
                                     options, current=plan.vehicle.engine if plan else None),

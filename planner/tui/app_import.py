@@ -4,18 +4,21 @@ from __future__ import annotations
 
 from typing import TYPE_CHECKING
 
-from planner.tui.readings_import import StagedImport, readings_form
 from planner.tui.screens.form import FormScreen
-from planner.tui.screens.import_readings import ImportReport
 
 if TYPE_CHECKING:
     from planner.tui.app import BeltplanApp
+    from planner.tui.readings_import import StagedImport
 
 
 class ImportActions:
     """Mixed into `BeltplanApp`."""
 
     def action_import_readings(self: BeltplanApp) -> None:
+        # Imported on first use: the CSV reader is not needed to open the fleet.
+        from planner.tui.readings_import import readings_form
+        from planner.tui.screens.import_readings import ImportReport
+
         session = self.session
         if session.fleet is None:
             return

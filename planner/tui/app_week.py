@@ -10,11 +10,10 @@ from __future__ import annotations
 from typing import TYPE_CHECKING
 
 from planner.errors import PlannerError
-from planner.tui.screens.week import WeekScreen
-from planner.tui.week_state import WeekState
 
 if TYPE_CHECKING:
     from planner.tui.app import BeltplanApp
+    from planner.tui.week_state import WeekState
 
 
 class WeekActions:
@@ -22,6 +21,8 @@ class WeekActions:
 
     def week_state(self: BeltplanApp) -> WeekState:
         """The session's week plan (a new one if the file was opened again)."""
+        from planner.tui.week_state import WeekState  # on first use: not needed to open a fleet
+
         state: WeekState | None = getattr(self, "_week_state", None)
         if state is None or state.session is not self.session:
             state = WeekState(self.session)
@@ -29,6 +30,8 @@ class WeekActions:
         return state
 
     def action_week(self: BeltplanApp) -> None:
+        from planner.tui.screens.week import WeekScreen
+
         try:
             self.week_state().plan()
         except PlannerError as err:
