@@ -8,6 +8,7 @@ Ratios, not seconds, are the figures to compare across machines (these machines 
 - plan time at 100,000 ÷ plan time at 10,000 (linear growth gives 10);
 - UI first screen with 5,000 vehicles ÷ an empty Textual app's first screen, and the time to
   apply a filter or a sort at 10,000 vehicles (see `ui_figures`);
+- the same first screens from spawning the process, in a real pty (see `launch_figures`);
 - peak memory (max RSS) of a process that loads and plans 100,000 vehicles.
 Each timing is the best of several runs, to keep the noise of a shared machine out.
 """
@@ -83,6 +84,15 @@ def ui_figures() -> dict[str, float] | None:
     return measure()
 
 
+def launch_figures() -> dict[str, float] | None:
+    """From spawning the process to the first screen, in a pty (`bench_launch.py`)."""
+    try:
+        from tests.benchmarks.bench_launch import measure, pty_available
+    except ImportError:  # no pyte (the test extra), or no POSIX terminals here
+        return None
+    return measure() if pty_available() else None
+
+
 def main() -> int:
     parser = argparse.ArgumentParser(description=__doc__,
                                      formatter_class=argparse.RawDescriptionHelpFormatter)
@@ -110,6 +120,14 @@ def main() -> int:
               f"{ui['empty']:.3f} s, ratio {ui['first'] / ui['empty']:.2f} (goal: <= 2)")
         print(f"  UI filter at 10,000 vehicles: {ui['filter'] * 1000:.0f} ms, sort: "
               f"{ui['sort'] * 1000:.0f} ms (goal: < 100 ms)")
+    launch = launch_figures()
+    if launch:
+        empty = launch["empty"]
+        print(f"  launch to first screen (a real pty): empty app {empty * 1000:.0f} ms, courier "
+              f"example {launch['small'] * 1000:.0f} ms, ratio {launch['small'] / empty:.2f}")
+        print(f"  launch, 5,000 vehicles: first paint {launch['paint'] * 1000:.0f} ms, ratio "
+              f"{launch['paint'] / empty:.2f}; full first screen {launch['first']:.3f} s, ratio "
+              f"{launch['first'] / empty:.2f} (goal: <= 2)")
     return 0
 
 
