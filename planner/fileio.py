@@ -372,16 +372,19 @@ def _remove_stale_temps(target: Path) -> None:
         pass
 
 
-def save_fleet_text(loaded: LoadedFleet, text: str) -> LoadedFleet:
+def save_fleet_text(loaded: LoadedFleet, text: str, fleet: Fleet | None = None) -> LoadedFleet:
     """Save new text for a loaded fleet file: checked, backed up, atomic.
 
     Refuses when the file on disk is no longer the one that was read. The new text must parse
-    and validate, so a save can never leave a file the planner cannot read. The check and the
-    write happen under an exclusive lock on the file (where the system has `flock`), so two
-    processes saving at the same moment cannot both pass the check.
+    and validate, so a save can never leave a file the planner cannot read: it is parsed here,
+    unless the caller passes `fleet`, what `parse_fleet_text` gave for this very text (the UI
+    checked every edit so, and keeps the text with its fleet). The check and the write happen
+    under an exclusive lock on the file (where the system has `flock`), so two processes saving
+    at the same moment cannot both pass the check.
     """
     path = loaded.path
-    fleet = parse_fleet_text(text, str(path))
+    if fleet is None:
+        fleet = parse_fleet_text(text, str(path))
     data = ((BOM if loaded.bom else "") + text).encode("utf-8")
     with _locked(path):
         try:

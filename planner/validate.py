@@ -81,6 +81,32 @@ def build_fleet(data: dict[str, Any]) -> Fleet:
     return shell.model_copy(update={"vehicles": [v for _, v in vehicles]})
 
 
+def rebuild_fleet(fleet: Fleet, start: int, stop: int, raw_vehicles: list[Any]) -> Fleet:
+    """`build_fleet` of the data that gave `fleet`, its vehicles[start:stop] replaced by the
+    raw tables `raw_vehicles` (all else the same); raise `PlannerError` on any problem.
+
+    The new tables are validated one by one as `build_fleet` does, and the rules that look
+    across vehicles run over the whole new list. The problems are not located or complete
+    (the caller parses the whole text to report them).
+    """
+    problems: list[Problem] = []
+    fresh: list[Vehicle] = []
+    for k, raw in enumerate(raw_vehicles):
+        index = start + k
+        if not isinstance(raw, dict):
+            raise PlannerError("a vehicle is not a table", "", [])
+        vehicle, found = _validated(Vehicle, raw, ("vehicles", index), _vehicle_name(raw, index))
+        problems.extend(found)
+        if vehicle is not None:
+            fresh.append(vehicle)
+    vehicles = fleet.vehicles[:start] + fresh + fleet.vehicles[stop:]
+    if not problems:
+        problems.extend(check_vehicles(enumerate(vehicles), fleet.engines))
+    if problems:
+        raise PlannerError("The fleet file has problems", f"{len(problems)} found", problems)
+    return fleet.model_copy(update={"vehicles": vehicles})
+
+
 def _vehicle_name(raw: Any, index: int) -> str:
     """How problems name a vehicle: its id when it has a usable one, else its position."""
     vid = raw.get("id") if isinstance(raw, dict) else None

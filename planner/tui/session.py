@@ -32,6 +32,7 @@ from planner.fileio import (
 )
 from planner.fleet import Fleet
 from planner.plan import Status, VehiclePlan
+from planner.reparse import reparse_fleet_text
 from planner.risk import FleetAssessment, assess_fleet_plan
 
 EXPORT_FORMATS: dict[str, str] = {"csv": "csv", "json": "json", "markdown": "md"}
@@ -139,7 +140,10 @@ class Session:
         """Parse and validate candidate text exactly as the loader does (PlannerError if not)."""
         if self._checked is not None and self._checked[0] == text:
             return self._checked[1]
-        fleet = parse_fleet_text(text, str(self.path))
+        if self.fleet is not None:  # an edit of the current text: only what changed is read
+            fleet = reparse_fleet_text(text, str(self.path), self.text, self.fleet)
+        else:
+            fleet = parse_fleet_text(text, str(self.path))
         self._checked = (text, fleet)
         return fleet
 
@@ -173,7 +177,8 @@ class Session:
         """Checked, backed-up, atomic save; raises PlannerError (e.g. changed on disk)."""
         if self.loaded is None:
             raise PlannerError("nothing to save", "The file did not load.")
-        self.loaded = save_fleet_text(self.loaded, self.text)
+        assert self.fleet is not None  # the text was checked: `fleet` is what it gives
+        self.loaded = save_fleet_text(self.loaded, self.text, self.fleet)
 
     def save_copy(self) -> Path:
         """Write the current text beside the file, for when the file itself cannot be saved."""
