@@ -76,12 +76,6 @@ class FileActions:
             return
         self.save_now()
 
-    async def reload_now(self: BeltplanApp) -> None:
-        ok = self.session.load()
-        await self.show_base()
-        self.say(f"Read {self.session.path} again." if ok else
-                 f"{self.session.path} still has problems.", "information" if ok else "error")
-
     def action_reload(self: BeltplanApp) -> None:
         if not self.session.dirty:
             self.call_later(self.reload_now)
