@@ -4,8 +4,9 @@ from __future__ import annotations
 
 import argparse
 import datetime as dt
+import sys
 
-from planner import importer
+from planner import importer, inuse
 from planner.cli.cmd_import import add_csv_options, read_csv
 from planner.cli.common import load
 from planner.fileio import backup_path, save_fleet_text
@@ -63,4 +64,15 @@ def run(args: argparse.Namespace) -> int:
         print(f"\nSaved {args.file} with {len(result.added)} new reading"
               f"{'s' * (len(result.added) != 1)} (the previous version is "
               f"{backup_path(loaded.path)}).")
+        note_open_window(args.file, inuse.holder(loaded.path))
     return 0
+
+
+def note_open_window(file: str, held: inuse.Holder | None) -> None:
+    """One line on stderr when a beltplan window has the file open: its next save is refused."""
+    if held is None:
+        return
+    now = dt.datetime.now(dt.UTC)  # the clock at the edge, for "12 minutes ago"
+    print(f"beltplan: note: {file} is open in a beltplan window of {held.who()} since "
+          f"{held.since(now)}; that window will have to reload the file before it can save.",
+          file=sys.stderr)
