@@ -20,6 +20,7 @@ from planner.tui.actions import BY_ID, bindings, first_key, scope_of
 from planner.tui.app_edit import EditActions
 from planner.tui.app_file import FileActions
 from planner.tui.app_import import ImportActions
+from planner.tui.app_inuse import InUseActions, Marked
 from planner.tui.app_week import WeekActions
 from planner.tui.background import gc_paused, internal_error, off_thread
 from planner.tui.commands import ActionCommands
@@ -40,7 +41,7 @@ from planner.tui.widgets.fleet_table import TableRows, next_sort, prepare_rows
 QUICK_PLAN = 0.05  # seconds
 
 
-class BeltplanApp(EditActions, FileActions, ImportActions, WeekActions, App[None],
+class BeltplanApp(EditActions, FileActions, ImportActions, InUseActions, WeekActions, App[None],
                   inherit_bindings=False):
     """The planner's terminal UI over one fleet file."""
 
@@ -50,8 +51,9 @@ class BeltplanApp(EditActions, FileActions, ImportActions, WeekActions, App[None
     COMMANDS = {ActionCommands}
     COMMAND_PALETTE_BINDING = first_key(BY_ID["command_palette"].keys)
 
-    def __init__(self, session: Session, **kwargs: Any) -> None:
+    def __init__(self, session: Session, in_use: bool | None = None, **kwargs: Any) -> None:
         super().__init__(**kwargs)
+        self.init_in_use(in_use)
         self.session = session
         self.last_message = ""  # the last thing the app told the user (tests read it)
         self.reading = False  # the file is being read in a worker
@@ -66,6 +68,7 @@ class BeltplanApp(EditActions, FileActions, ImportActions, WeekActions, App[None
         self.call_after_refresh(self.read_in_background)  # the loading view first, then work
 
     def on_unmount(self) -> None:
+        self.release_in_use()
         gc.unfreeze()  # what the reads froze can be collected once the app is gone
 
     def check_action(self, action: str, parameters: tuple[object, ...]) -> bool | None:
@@ -85,7 +88,7 @@ class BeltplanApp(EditActions, FileActions, ImportActions, WeekActions, App[None
         s = self.session
         busy = "reading …" if self.reading else "re-planning …" if self.planning else ""
         bar.show(s.name if s.ok else str(s.path), str(s.path), len(s.history), s.dirty,
-                 loaded=s.ok, busy=busy)
+                 loaded=s.ok, busy=busy, read_only=self.read_only)
 
     def _show_titles(self) -> None:
         for screen in self.screen_stack:
@@ -128,20 +131,22 @@ class BeltplanApp(EditActions, FileActions, ImportActions, WeekActions, App[None
 
     async def _read_worker(self, again: bool) -> None:
         session, previous = self.session, self._rows
+        mark = self.in_use_job(session)
 
-        def work() -> tuple[Reading, TableRows | None]:
+        def work() -> tuple[Reading, TableRows | None, Marked]:
             with gc_paused(reclaim=True):
                 reading = session.read()
                 planned = reading.planned
-                if planned is None:
-                    return reading, None
-                return reading, prepare_rows(planned.records, planned.columns(), previous)
+                rows = None if planned is None else \
+                    prepare_rows(planned.records, planned.columns(), previous)
+            return reading, rows, mark(reading)  # the in-use marker, once the file read well
 
         try:
-            reading, rows = await off_thread(work)
+            reading, rows, marked = await off_thread(work)
         except Exception as exc:  # a bug, not the file: the error view says so
             self.log.error(f"reading {session.path} failed", exc)
             reading, rows = Reading(None, internal_error(f"reading {session.path}", exc)), None
+            marked = None
         self.reading = False
         session.adopt(reading)
         self._rows = rows
@@ -151,6 +156,7 @@ class BeltplanApp(EditActions, FileActions, ImportActions, WeekActions, App[None
             self.say(f"Read {session.path} again." if session.ok else
                      f"{session.path} still has problems.",
                      "information" if session.ok else "error")
+        self.settle_in_use(session, marked)
 
     def plan_in_background(self) -> None:
         """Plan the current text and date in a worker; the views redraw when it is done."""
@@ -290,6 +296,12 @@ class BeltplanApp(EditActions, FileActions, ImportActions, WeekActions, App[None
         self.push_screen(AboutScreen(line))
 
 
-def create_app(path: str | Path, as_of: dt.date, **kwargs: Any) -> BeltplanApp:
-    """The app on the fleet file at `path`, planning as of `as_of` (never today's date here)."""
-    return BeltplanApp(Session(path, as_of), **kwargs)
+def create_app(path: str | Path, as_of: dt.date, in_use: bool | None = None,
+               **kwargs: Any) -> BeltplanApp:
+    """The app on the fleet file at `path`, planning as of `as_of` (never today's date here).
+
+    `in_use`: mark the file as open in this window (`planner.inuse`). By default yes, except
+    in a headless app (`run_test`): test runs neither leave nor meet markers beside the shared
+    example files; the marker's own tests pass `in_use=True`.
+    """
+    return BeltplanApp(Session(path, as_of), in_use=in_use, **kwargs)

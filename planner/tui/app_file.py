@@ -27,6 +27,9 @@ class FileActions:
     def save_now(self: BeltplanApp, then_quit: bool = False) -> bool:
         """Save; on refusal explain and offer the ways out. True when saved."""
         session = self.session
+        if self.read_only:  # another window has the file (see app_inuse)
+            self.refuse_read_only()
+            return False
         try:
             session.save()
         except PlannerError as err:
@@ -55,12 +58,7 @@ class FileActions:
 
         def done(answer: str | None) -> None:
             if answer == "copy":
-                try:
-                    target = session.save_copy()
-                except PlannerError as err:
-                    self.say(err.render(), "error")
-                    return
-                self.say(f"Your version is in {target}; the fleet file was not touched.")
+                self.keep_copy()
             elif answer == "reload":
                 self.call_later(self.reload_now)
 
@@ -69,6 +67,15 @@ class FileActions:
                                    [("keep", "Keep editing", "primary"),
                                     ("copy", "Keep a copy", "default"),
                                     ("reload", "Reload (drop mine)", "warning")]), done)
+
+    def keep_copy(self: BeltplanApp) -> None:
+        """Write the current text beside the fleet file (which stays untouched)."""
+        try:
+            target = self.session.save_copy()
+        except PlannerError as err:
+            self.say(err.render(), "error")
+            return
+        self.say(f"Your version is in {target}; the fleet file was not touched.")
 
     def action_save(self: BeltplanApp) -> None:
         if not self.session.dirty:

@@ -17,13 +17,14 @@ from planner.tui.session import status_counts
 
 
 class TitleBar(Horizontal):
-    """`beltplan ▸ fleet name · file` on the left, the unsaved marker on the right."""
+    """`beltplan ▸ fleet name · file` on the left; read-only and the unsaved marker on the right."""
 
     DEFAULT_CSS = """
     TitleBar { height: 1; dock: top; background: $panel; }
     TitleBar #title-left { width: 1fr; height: 1; text-wrap: nowrap; text-overflow: ellipsis; }
     TitleBar #title-right { width: auto; height: 1; padding: 0 1; }
     TitleBar #title-right.-dirty { background: $warning 30%; text-style: bold; }
+    TitleBar #title-right.-read-only { background: $error 30%; }
     """
 
     def compose(self) -> ComposeResult:
@@ -31,8 +32,9 @@ class TitleBar(Horizontal):
         yield Static(id="title-right", markup=False)
 
     def show(self, name: str, file: str, changes: int, dirty: bool, extra: str = "",
-             loaded: bool = True, busy: str = "") -> None:
-        """`busy` (reading, re-planning) goes on the right, where a long path cannot hide it."""
+             loaded: bool = True, busy: str = "", read_only: bool = False) -> None:
+        """`busy` (reading, re-planning) and `read_only` go on the right, where a long path
+        cannot hide them."""
         left = literal(" beltplan ", ACCENT)
         left.append("▸ ", style=DIM)
         left.append(literal(name, "bold"))
@@ -43,6 +45,9 @@ class TitleBar(Horizontal):
         self.query_one("#title-left", Static).update(left)
         right = self.query_one("#title-right", Static)
         state = literal(f"{busy}  ", ACCENT) if busy else Text()
+        if read_only:
+            state.append("read-only", style="bold")
+            state.append(" · ", style=DIM)
         if dirty:
             word = "change" if changes == 1 else "changes"
             state.append(f"● {changes} unsaved {word}" if changes else "● unsaved")
@@ -52,6 +57,7 @@ class TitleBar(Horizontal):
             state.append("saved", style=DIM)
         right.update(state)
         right.set_class(dirty, "-dirty")
+        right.set_class(read_only and not dirty, "-read-only")
 
 
 class SummaryLine(Static):
