@@ -19,7 +19,7 @@ import re
 import tempfile
 import time
 import tomllib
-from collections.abc import Iterator
+from collections.abc import Callable, Iterator
 from dataclasses import dataclass
 from pathlib import Path
 
@@ -244,10 +244,19 @@ def _syntax_hint(text: str, line: int | None, msg: str) -> str:
     return default
 
 
-def load_fleet(path: str | os.PathLike[str]) -> LoadedFleet:
-    """Read, parse and validate a fleet file."""
+def load_fleet(path: str | os.PathLike[str],
+               known: Callable[[str], Fleet | None] | None = None) -> LoadedFleet:
+    """Read, parse and validate a fleet file.
+
+    `known(digest)` may give the fleet these very bytes were validated to before (the UI's
+    `fleetcache.get`); the text is then not parsed again.
+    """
     p = Path(path)
     text, raw, bom = read_text(p)
+    digest = digest_of(raw)
+    fleet = known(digest) if known is not None else None
+    if fleet is not None:
+        return LoadedFleet(path=p, fleet=fleet, text=text, digest=digest, bom=bom)
     try:
         fleet = parse_fleet_text(text, str(p))
     except PlannerError as err:
@@ -257,7 +266,7 @@ def load_fleet(path: str | os.PathLike[str]) -> LoadedFleet:
                                f"the last save is {backup}: if the fleet should be here, copy "
                                "that back over it.") from None
         raise
-    return LoadedFleet(path=p, fleet=fleet, text=text, digest=digest_of(raw), bom=bom)
+    return LoadedFleet(path=p, fleet=fleet, text=text, digest=digest, bom=bom)
 
 
 def write_atomic(path: str | os.PathLike[str], data: bytes) -> None:

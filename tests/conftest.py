@@ -57,7 +57,10 @@ def courier_copy(tmp_path: Path) -> Path:
 
 
 @pytest.fixture(autouse=True)
-def _plain_environment(monkeypatch: pytest.MonkeyPatch) -> None:
+def _plain_environment(monkeypatch: pytest.MonkeyPatch,
+                       tmp_path_factory: pytest.TempPathFactory) -> None:
     """Every test starts from the same terminal environment, whatever the caller's shell says:
-    NO_COLOR (which Textual and rich honour) would change snapshots and rendered output."""
+    NO_COLOR (which Textual and rich honour) would change snapshots and rendered output. And
+    each test has a fleet cache of its own, empty: never the user's, never another test's."""
     monkeypatch.delenv("NO_COLOR", raising=False)
+    monkeypatch.setenv("BELTPLAN_CACHE", str(tmp_path_factory.mktemp("fleet-cache")))

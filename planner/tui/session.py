@@ -20,7 +20,7 @@ from dataclasses import dataclass
 from pathlib import Path
 from typing import Any
 
-from planner import export
+from planner import export, fleetcache
 from planner.errors import PlannerError
 from planner.fileio import (
     LoadedFleet,
@@ -92,6 +92,7 @@ class Session:
         self.history: list[Change] = []
         self._cache: Planned | None = None
         self._checked: tuple[str, Fleet] | None = None  # the last text `check` accepted
+        self._kept: set[str] = set()  # digests whose fleet is in the cache (or was offered)
 
     # -- reading ------------------------------------------------------------------------------
     def load(self) -> bool:
@@ -101,10 +102,16 @@ class Session:
     def read(self, with_plan: bool = True) -> Reading:
         """Read (and plan) the file without changing the session: safe in a worker thread."""
         try:
-            loaded = load_fleet(self.path)
+            loaded = load_fleet(self.path, known=self._cached)
             return Reading(loaded, None, plan(loaded.fleet, self.as_of) if with_plan else None)
         except PlannerError as err:
             return Reading(None, err)
+
+    def _cached(self, digest: str) -> Fleet | None:
+        fleet = fleetcache.get(digest)
+        if fleet is not None:
+            self._kept.add(digest)  # nothing to write back
+        return fleet
 
     def adopt(self, reading: Reading) -> bool:
         """Make what `read` gave current, dropping edits; False (and `error`) when bad."""
@@ -179,6 +186,15 @@ class Session:
             raise PlannerError("nothing to save", "The file did not load.")
         assert self.fleet is not None  # the text was checked: `fleet` is what it gives
         self.loaded = save_fleet_text(self.loaded, self.text, self.fleet)
+
+    def cache_job(self) -> Callable[[], bool] | None:
+        """Work for a worker thread: keep the fleet of the file as it is on disk in the cache
+        (`fleetcache`), so the next open is quick; None when there is nothing new to keep."""
+        loaded = self.loaded
+        if loaded is None or loaded.digest in self._kept:
+            return None
+        self._kept.add(loaded.digest)
+        return lambda: fleetcache.put(loaded.digest, loaded.fleet)
 
     def save_copy(self) -> Path:
         """Write the current text beside the file, for when the file itself cannot be saved."""
