@@ -32,13 +32,16 @@ def assert_gone(pid: int) -> None:
         os.killpg(pid, 0)
 
 
-def test_launch_shows_the_courier_fleet_table_and_leaves_no_process():
-    check, first, n = bl.small_check()
+def test_launch_shows_the_courier_fleet_table_and_leaves_no_process(tmp_path):
+    # A copy: the UI killed here leaves its in-use marker beside the file it opened.
+    courier = tmp_path / "courier_fleet.toml"
+    courier.write_bytes((ROOT / bl.COURIER).read_bytes())
+    check, first, n = bl.small_check(courier)
     # The example holds 16 vehicles: counted with tomllib (the standard library), not the engine.
-    toml = tomllib.loads((ROOT / bl.COURIER).read_text(encoding="utf-8"))
+    toml = tomllib.loads(courier.read_text(encoding="utf-8"))
     assert len(toml["vehicles"]) == n == 16
 
-    run = bl.launch(bl.planner_argv(bl.COURIER), check, {"paint": bl.painted}, timeout=30)
+    run = bl.launch(bl.planner_argv(courier), check, {"paint": bl.painted}, timeout=30)
 
     lines = run.text.splitlines()
     summary = next(line for line in lines if " vehicles: " in line)

@@ -11,7 +11,8 @@ ENGINE = ["planner.fleet", "planner.validate", "planner.plan", "planner.risk",
           "planner.reliability", "planner.schedule", "planner.export", "planner.locate",
           "planner.errors", "planner.units", "planner.week", "planner.week_export",
           "planner.importer", "planner.edit"]
-FORBIDDEN = ["textual", "planner.tui", "planner.cli", "planner.fileio", "scipy", "numpy"]
+FORBIDDEN = ["textual", "planner.tui", "planner.cli", "planner.fileio", "planner.inuse",
+             "planner.fleetcache", "planner.reparse", "scipy", "numpy"]
 
 
 @pytest.mark.parametrize("module", ENGINE)

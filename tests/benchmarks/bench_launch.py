@@ -20,7 +20,8 @@ each run so a noisy moment hits them alike:
 - **first**: the same on a generated 5,000-vehicle file until the full first screen: the summary
   line with the engine's own status counts and at least the first 30 ids of the engine's triage
   order, in that order (the checks of `bench_ui.py`); **paint**: its first paint of anything
-  (the loading view); **script**: `first` again, started by the `beltplan` console script beside
+  (the loading view); **reopen**: `first` with the fleet in the cache (`planner.fleetcache`), as
+  after the UI opened or saved that file before (the others start with an empty cache); **script**: `first` again, started by the `beltplan` console script beside
   the interpreter instead of `python -m planner`.
 
 Fair to both apps: the same interpreter, environment (TEXTUAL* variables removed), working
@@ -62,6 +63,7 @@ import termios
 
 import pyte
 
+from planner import fleetcache
 from planner.fileio import load_fleet
 from planner.generate import generate_fleet_text
 from planner.risk import assess_fleet_plan
@@ -128,10 +130,12 @@ def screen_text(screen: pyte.Screen) -> str:
     return "\n".join(screen.display)
 
 
-def launch_env() -> dict[str, str]:
-    """The environment of every launch: this one, the terminal set, Textual's own switches off."""
+def launch_env(extra: dict[str, str] | None = None) -> dict[str, str]:
+    """The environment of every launch: this one, the terminal set, Textual's own switches off,
+    and `extra` (the fleet cache's folder)."""
     env = {k: v for k, v in os.environ.items() if not k.startswith("TEXTUAL")}
     env.update(TERM="xterm-256color", COLUMNS=str(SIZE[0]), LINES=str(SIZE[1]))
+    env.update(extra or {})
     return env
 
 
@@ -195,7 +199,8 @@ def replay(chunks: Sequence[tuple[float, bytes]], checks: dict[str, Check],
 
 
 def launch(argv: Sequence[str], until: Check, marks: dict[str, Check] | None = None,
-           timeout: float = TIMEOUT, what: str = "the first screen") -> Launch:
+           timeout: float = TIMEOUT, what: str = "the first screen",
+           env: dict[str, str] | None = None) -> Launch:
     """Spawn `argv` on a fresh pty, read its screen until `until` holds, then kill it.
 
     Returns the seconds from the spawn to `until` holding (`times["until"]`) and to each of
@@ -216,7 +221,7 @@ def launch(argv: Sequence[str], until: Check, marks: dict[str, Check] | None = N
         try:
             start = time.perf_counter()
             proc = subprocess.Popen(list(argv), stdin=slave, stdout=slave, stderr=slave,
-                                    cwd=ROOT, env=launch_env(), start_new_session=True)
+                                    cwd=ROOT, env=launch_env(env), start_new_session=True)
             os.close(slave)
             slave = -1
             deadline = start + timeout
@@ -293,31 +298,65 @@ def full_check(want: Expected) -> Check:
 
 def measure(runs: int = RUNS) -> dict[str, Any]:
     """Launch figures in seconds, each the best of `runs`: "empty", "small_paint", "small",
-    "paint", "first", "script" (None without a console script)."""
-    small, _, _ = small_check()
+    "paint", "first", "reopen", "script" (None without a console script).
+
+    Every launch of beltplan has a fleet cache of its own (never the user's): an empty one
+    for "small", "paint", "first" and "script" (the file read and parsed), and for "reopen"
+    one that holds the 5,000-vehicle fleet, as the UI leaves it after opening or saving it.
+    """
     script = console_script()
     with tempfile.TemporaryDirectory() as tmp:
+        courier = Path(tmp) / Path(COURIER).name  # a copy: a killed UI leaves its marker
+        courier.write_bytes((ROOT / COURIER).read_bytes())
+        small, _, _ = small_check(courier)
         path = Path(tmp) / "fleet_5k.toml"
         text = generate_fleet_text(FIRST_N, seed=7)
         path.write_text(text, encoding="utf-8")
         full = full_check(Expected(text))
+        warm = {fleetcache.ENV: str(Path(tmp) / "warm-cache")}
+        _fill_cache(path, warm[fleetcache.ENV])
         best: dict[str, Any] = dict.fromkeys(
-            ("empty", "small_paint", "small", "paint", "first", "script"), float("inf"))
-        for _ in range(runs):  # interleaved, so a noisy moment hits each alike
+            ("empty", "small_paint", "small", "paint", "first", "reopen", "script"),
+            float("inf"))
+        for k in range(runs):  # interleaved, so a noisy moment hits each alike
+
+            def cold(name: str, k: int = k) -> dict[str, str]:
+                return {fleetcache.ENV: str(Path(tmp) / f"cold-{name}-{k}")}
+
             got = {"empty": launch([sys.executable, "-c", EMPTY_APP],
                                    lambda t: "empty app" in t, what="empty app").times["until"]}
-            r = launch(planner_argv(COURIER), small, {"paint": painted}, what="courier example")
+            r = launch(planner_argv(courier), small, {"paint": painted}, what="courier example",
+                       env=cold("small"))
             got["small"], got["small_paint"] = r.times["until"], r.times["paint"]
-            r = launch(planner_argv(path), full, {"paint": painted}, what="5,000 vehicles")
+            r = launch(planner_argv(path), full, {"paint": painted}, what="5,000 vehicles",
+                       env=cold("first"))
             got["first"], got["paint"] = r.times["until"], r.times["paint"]
+            got["reopen"] = launch(planner_argv(path), full, what="5,000 vehicles, cached",
+                                   env=warm).times["until"]
             if script is not None:
                 got["script"] = launch(planner_argv(path, script=True), full,
-                                       what="5,000 vehicles, console script").times["until"]
+                                       what="5,000 vehicles, console script",
+                                       env=cold("script")).times["until"]
             for key, value in got.items():
                 best[key] = min(best[key], value)
     if script is None:
         best["script"] = None
     return best
+
+
+def _fill_cache(path: Path, folder: str) -> None:
+    """Put the fleet of `path` in the cache at `folder`, as the UI does after a read."""
+    saved = os.environ.get(fleetcache.ENV)
+    os.environ[fleetcache.ENV] = folder
+    try:
+        loaded = load_fleet(path)
+        if not fleetcache.put(loaded.digest, loaded.fleet):
+            raise RuntimeError(f"the fleet cache at {folder} could not be written")
+    finally:
+        if saved is None:
+            del os.environ[fleetcache.ENV]
+        else:
+            os.environ[fleetcache.ENV] = saved
 
 
 def main(argv: Sequence[str] | None = None) -> int:
@@ -344,6 +383,8 @@ def main(argv: Sequence[str] | None = None) -> int:
           f"ratio {r['paint'] / empty:.2f}")
     print(f"  {FIRST_N:,} vehicles, full first screen: {r['first'] * ms:.0f} ms, "
           f"ratio {r['first'] / empty:.2f} (goal: <= 2)")
+    print(f"  {FIRST_N:,} vehicles opened again, the fleet cached: {r['reopen'] * ms:.0f} ms, "
+          f"ratio {r['reopen'] / empty:.2f}")
     if r["script"] is None:
         print("  (no beltplan console script beside this interpreter: not compared)")
     else:
