@@ -28,6 +28,7 @@ import os
 import pickle
 import secrets
 import sys
+import time
 from importlib.metadata import PackageNotFoundError, version
 from pathlib import Path
 
@@ -38,6 +39,7 @@ MAGIC = b"beltplan fleet cache 1\n"
 KEEP_BYTES = 512 * 1024 * 1024  # the entries kept in all (oldest used removed first)
 SUFFIX = ".fleet"
 ENV = "BELTPLAN_CACHE"
+STALE_SECONDS = 600  # a temporary file this old belongs to no write still running
 
 _fingerprint: bytes | None = None
 
@@ -158,7 +160,15 @@ def _key(base: Path, create: bool) -> bytes | None:
 
 
 def _prune(base: Path) -> None:
-    """Remove the least recently used entries beyond KEEP_BYTES in all (never the newest)."""
+    """Remove the least recently used entries beyond KEEP_BYTES in all (never the newest),
+    and temporary files a killed write left (old ones only: a younger one may be in use)."""
+    now = time.time()
+    for leftover in base.glob(".*" + SUFFIX + ".*.tmp"):
+        try:
+            if now - leftover.stat().st_mtime > STALE_SECONDS:
+                leftover.unlink()
+        except OSError:
+            pass
     entries = []
     for entry in base.glob("*" + SUFFIX):
         try:

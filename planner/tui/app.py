@@ -9,6 +9,7 @@ from __future__ import annotations
 
 import datetime as dt
 import gc
+from collections.abc import Callable
 from pathlib import Path
 from typing import Any
 
@@ -39,6 +40,7 @@ from planner.tui.widgets.fleet_table import TableRows, next_sort, prepare_rows
 # A re-plan is done at once when the last plan took less than this (a small fleet: the views
 # change with no "re-planning" flash); otherwise in a worker while the UI stays live.
 QUICK_PLAN = 0.05  # seconds
+CACHE_DELAY = 1.0  # seconds after a read or a save before the fleet is written to the cache
 
 
 class BeltplanApp(EditActions, FileActions, ImportActions, InUseActions, WeekActions, App[None],
@@ -157,6 +159,25 @@ class BeltplanApp(EditActions, FileActions, ImportActions, InUseActions, WeekAct
                      f"{session.path} still has problems.",
                      "information" if session.ok else "error")
         self.settle_in_use(session, marked)
+        self.keep_in_cache()
+
+    def keep_in_cache(self) -> None:
+        """Soon, in a worker: keep the fleet as it is on disk in the fleet cache, so that the
+        next open of this file is quick (after a read, after a save; nothing if kept already).
+
+        It waits CACHE_DELAY first: pickling a big fleet shares the interpreter with the UI
+        for a moment, better not while the first screen is being looked at.
+        """
+        job = self.session.cache_job()
+        if job is not None:
+            self.set_timer(CACHE_DELAY, lambda: self.run_worker(
+                self._cache_worker(job), group="cache", exit_on_error=False))
+
+    async def _cache_worker(self, job: Callable[[], bool]) -> None:
+        try:
+            await off_thread(job)
+        except Exception as exc:  # a cache is an aid: never an error for the user
+            self.log.error("keeping the fleet in the cache failed", exc)
 
     def plan_in_background(self) -> None:
         """Plan the current text and date in a worker; the views redraw when it is done."""

@@ -39,6 +39,7 @@ class FileActions:
                 self.say(err.render(), "error")
             return False
         self.refresh_views()
+        self.keep_in_cache()  # the saved text's fleet: the next open need not parse it
         self.say(f"Saved {session.path} (the previous version is in "
                  f"{session.path.name}.bak).")
         if then_quit:
