@@ -53,8 +53,8 @@ def build_parser() -> argparse.ArgumentParser:
 
 def main(argv: Sequence[str] | None = None) -> int:
     args_in = list(sys.argv[1:] if argv is None else argv)
-    parser = build_parser()
-    # `beltplan [FILE] [options]` (no command word) opens the terminal UI.
+    # `beltplan [FILE] [options]` (no command word) opens the terminal UI: only its own parser
+    # is built, so the UI does not wait for every command's module to load.
     first = args_in[0] if args_in else ""
     if first not in COMMANDS and first not in ("-h", "--help", "--version"):
         from planner.cli import cmd_open
@@ -63,6 +63,8 @@ def main(argv: Sequence[str] | None = None) -> int:
         cmd_open.register(holder)
         parser = holder.choices["open"]
         parser.prog = "beltplan"  # usage reads `beltplan [FILE] …`, not `beltplan open`
+    else:
+        parser = build_parser()
     args = parser.parse_args(args_in)
     if not getattr(args, "run", None):
         parser.print_help()

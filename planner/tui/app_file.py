@@ -8,7 +8,6 @@ from typing import TYPE_CHECKING
 from rich.text import Text
 
 from planner.errors import PlannerError
-from planner.tui import form_specs
 from planner.tui.screens.dialogs import AskDialog
 from planner.tui.screens.form import FormScreen
 
@@ -109,7 +108,9 @@ class FileActions:
                 n = len(records)
                 self.say(f"Exported {n} vehicle{'s' if n != 1 else ''} to {path}")
 
-        self.push_screen(FormScreen(form_specs.export_form(self.session, records)), done)
+        from planner.tui.form_specs import export_form  # on first use: not needed to open
+
+        self.push_screen(FormScreen(export_form(self.session, records)), done)
 
     async def action_quit(self: BeltplanApp) -> None:
         if not self.session.dirty:
