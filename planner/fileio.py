@@ -22,6 +22,7 @@ import tomllib
 from collections.abc import Callable, Iterator
 from dataclasses import dataclass
 from pathlib import Path
+from typing import TYPE_CHECKING
 
 try:
     import fcntl
@@ -32,6 +33,9 @@ from planner.errors import PlannerError, Problem
 from planner.fleet import Fleet
 from planner.locate import line_of, locate
 from planner.validate import build_fleet
+
+if TYPE_CHECKING:
+    from planner.importer import Decoded
 
 BOM = "\ufeff"
 MAX_FILE_BYTES = 512 * 1024 * 1024  # a 100,000-vehicle fleet with ten years of readings is ~100 MB
@@ -487,3 +491,35 @@ def _fsync_dir(folder: Path) -> None:
         pass
     finally:
         os.close(fd)
+
+
+MAX_CSV_BYTES = 64 * 1024 * 1024
+SPREADSHEET_SUFFIXES = (".xlsx", ".xlsm", ".xls", ".ods", ".numbers")
+
+
+def read_csv(path: str) -> Decoded:
+    """A CSV file's bytes, decoded (`importer.decode_bytes`: BOM, UTF-8 or Windows-1252); a
+    missing, unreadable or wrong kind of file is a PlannerError."""
+    p = Path(path)
+    if p.suffix.lower() in SPREADSHEET_SUFFIXES:
+        raise PlannerError(f"{path} is a spreadsheet workbook, not CSV",
+                           "In the spreadsheet use 'Save as' / 'Download as' CSV (UTF-8 if "
+                           "offered), then import the .csv file.")
+    if p.suffix.lower() == ".toml":
+        raise PlannerError(f"{path} is a fleet file (TOML), not CSV",
+                           "It needs no import: use it with beltplan check or beltplan list.")
+    try:
+        if p.is_dir():
+            raise PlannerError(f"{path} is a folder", "Give the path of a .csv file.")
+        size = p.stat().st_size
+        if size > MAX_CSV_BYTES:
+            raise PlannerError(f"{path} is too large ({size:,} bytes)",
+                               f"Import at most {MAX_CSV_BYTES // 2**20} MiB at a time.")
+        raw = p.read_bytes()
+    except FileNotFoundError:
+        raise PlannerError(f"{path}: no such file", "Check the path of the CSV file.") from None
+    except OSError as exc:
+        raise PlannerError(f"{path}: cannot be read", exc.strerror or str(exc)) from None
+    from planner.importer import decode_bytes  # the importer loads only when a CSV is read
+
+    return decode_bytes(raw, path)

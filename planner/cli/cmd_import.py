@@ -9,9 +9,7 @@ from pathlib import Path
 
 from planner import importer
 from planner.errors import PlannerError
-from planner.fileio import backup_path, load_fleet, write_atomic
-
-MAX_CSV_BYTES = 64 * 1024 * 1024
+from planner.fileio import backup_path, load_fleet, read_csv, write_atomic
 
 EPILOG = """\
 examples:
@@ -67,34 +65,6 @@ def add_csv_options(p: argparse.ArgumentParser) -> None:
                        const=importer.DAY_FIRST, help="numeric dates are dd/mm/yyyy")
     order.add_argument("--month-first", dest="date_order", action="store_const",
                        const=importer.MONTH_FIRST, help="numeric dates are mm/dd/yyyy")
-
-
-SPREADSHEET_SUFFIXES = (".xlsx", ".xlsm", ".xls", ".ods", ".numbers")
-
-
-def read_csv(path: str) -> importer.Decoded:
-    """The CSV file's bytes, decoded; a missing or unreadable file is a PlannerError."""
-    p = Path(path)
-    if p.suffix.lower() in SPREADSHEET_SUFFIXES:
-        raise PlannerError(f"{path} is a spreadsheet workbook, not CSV",
-                           "In the spreadsheet use 'Save as' / 'Download as' CSV (UTF-8 if "
-                           "offered), then import the .csv file.")
-    if p.suffix.lower() == ".toml":
-        raise PlannerError(f"{path} is a fleet file (TOML), not CSV",
-                           "It needs no import: use it with beltplan check or beltplan list.")
-    try:
-        if p.is_dir():
-            raise PlannerError(f"{path} is a folder", "Give the path of a .csv file.")
-        size = p.stat().st_size
-        if size > MAX_CSV_BYTES:
-            raise PlannerError(f"{path} is too large ({size:,} bytes)",
-                               f"Import at most {MAX_CSV_BYTES // 2**20} MiB at a time.")
-        raw = p.read_bytes()
-    except FileNotFoundError:
-        raise PlannerError(f"{path}: no such file", "Check the path of the CSV file.") from None
-    except OSError as exc:
-        raise PlannerError(f"{path}: cannot be read", exc.strerror or str(exc)) from None
-    return importer.decode_bytes(raw, path)
 
 
 def run(args: argparse.Namespace) -> int:

@@ -7,9 +7,9 @@ import datetime as dt
 import sys
 
 from planner import importer, inuse
-from planner.cli.cmd_import import add_csv_options, read_csv
+from planner.cli.cmd_import import add_csv_options
 from planner.cli.common import load
-from planner.fileio import backup_path, save_fleet_text
+from planner.fileio import backup_path, read_csv, save_fleet_text
 
 EPILOG = """\
 examples:

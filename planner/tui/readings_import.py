@@ -1,6 +1,6 @@
 """Odometer readings from a CSV export, in the UI: the same import as `beltplan readings`.
 
-No Textual here. The form reads the file the way the command line does (`read_csv` of
+No Textual here. The form reads the file the way the command line does (`fileio.read_csv`, as
 `beltplan import`: size limit, workbook and TOML refused, encodings) and runs
 `planner.importer.import_readings` on the session's current text, so duplicates are skipped and
 backwards, future or unknown-vehicle readings are rejected by the importer's own rules. Nothing
@@ -16,7 +16,7 @@ from typing import Any
 from rich.text import Text
 
 from planner import importer
-from planner.cli.cmd_import import read_csv
+from planner.fileio import read_csv
 from planner.tui import clock
 from planner.tui.forms import FormField, FormSpec
 from planner.tui.look import DIM
