@@ -167,3 +167,23 @@ def test_every_command_has_help_with_an_example(command, capsys):
         main([command, "--help"])
     assert done.value.code == 0
     assert "example" in capsys.readouterr().out
+
+
+def test_a_command_holds_the_collector_off_only_while_it_runs(capsys, monkeypatch):
+    """The batch commands run with the cyclic collector off (their objects hold no cycles);
+    afterwards it is as it was, also when the command fails."""
+    import gc
+
+    seen: list[bool] = []
+    from planner.cli import cmd_check
+    real = cmd_check.run
+
+    def spy(args):
+        seen.append(gc.isenabled())
+        return real(args)
+
+    monkeypatch.setattr(cmd_check, "run", spy)
+    assert gc.isenabled()
+    assert main(["check", str(COURIER)]) == 0
+    assert main(["check", "no-such-file.toml"]) == 2
+    assert seen == [False, False] and gc.isenabled()

@@ -18,25 +18,15 @@ from tests.test_tui_support import (
     EXAMPLE,
     SMALL,
     copy_example,
-    fill,
     listed_ids,
     make_app,
     opened,
+    record_job,
     screen_name,
     sync,
     text_of,
     until,
 )
-
-
-async def record_job(pilot, odometer="226000"):
-    app = pilot.app
-    await pilot.press("j")
-    await until(pilot, lambda: screen_name(app) == "FormScreen")
-    fill(app, odometer=odometer, work="belt kit, water pump")
-    app.screen.query_one("#f-reason", Select).value = "scheduled"
-    await pilot.press("ctrl+o")
-    await until(pilot, lambda: screen_name(app) != "FormScreen", what="job recorded")
 
 
 def comment_lines(text: str) -> list[str]:

@@ -14,7 +14,6 @@ import sys
 import time
 
 import pytest
-from textual.widgets import Select
 
 from planner import inuse
 from planner.inuse import Claim
@@ -25,8 +24,8 @@ from tests.test_tui_support import (
     AS_OF,
     SMALL,
     copy_example,
-    fill,
     opened,
+    record_job,
     screen_name,
     sync,
     text_of,
@@ -71,16 +70,6 @@ def dead_pid() -> int:
 
 def title_right(app) -> str:
     return text_of(app.screen.query_one("#title-right"))
-
-
-async def record_job(pilot, odometer="226000"):
-    app = pilot.app
-    await pilot.press("j")
-    await until(pilot, lambda: screen_name(app) == "FormScreen")
-    fill(app, odometer=odometer, work="belt kit, water pump")
-    app.screen.query_one("#f-reason", Select).value = "scheduled"
-    await pilot.press("ctrl+o")
-    await until(pilot, lambda: screen_name(app) != "FormScreen", what="job recorded")
 
 
 async def asked(pilot) -> None:

@@ -17,7 +17,7 @@ from typing import Any
 
 from rich.console import Console
 from textual.pilot import Pilot
-from textual.widgets import Input
+from textual.widgets import Input, Select
 
 from planner.tui import create_app
 from planner.tui.app import BeltplanApp
@@ -99,3 +99,14 @@ def listed_ids(app: BeltplanApp) -> list[str]:
     main = app.main_screen()
     assert main is not None
     return [r["id"] for r in main.table.listed]
+
+
+async def record_job(pilot: Pilot, odometer: str = "226000") -> None:
+    """Record a scheduled belt job on the highlighted vehicle through the form."""
+    app = pilot.app
+    await pilot.press("j")
+    await until(pilot, lambda: screen_name(app) == "FormScreen")
+    fill(app, odometer=odometer, work="belt kit, water pump")
+    app.screen.query_one("#f-reason", Select).value = "scheduled"
+    await pilot.press("ctrl+o")
+    await until(pilot, lambda: screen_name(app) != "FormScreen", what="job recorded")
