@@ -9,7 +9,7 @@ from __future__ import annotations
 import calendar
 import datetime as dt
 import math
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 from enum import StrEnum
 
 from planner.fleet import (
@@ -124,10 +124,12 @@ class VehiclePlan:
     notes: tuple[str, ...]
     # Share of the interval used: the larger of distance and age fractions (1.0 = at the limit).
     life_used: float | None = None
+    # The vehicle's id, kept here: sorting and indexing 100,000 plans by id then touches no
+    # vehicle (scattered in memory, which made the plan grow faster than the fleet).
+    id: str = field(init=False, repr=False, compare=False)
 
-    @property
-    def id(self) -> str:
-        return self.vehicle.id
+    def __post_init__(self) -> None:
+        object.__setattr__(self, "id", self.vehicle.id)
 
 
 def resolve_spec(vehicle: Vehicle, fleet: Fleet) -> Spec:

@@ -26,7 +26,6 @@ from planner.plan import (
     life_fraction,
     plan_fleet,
     resolve_spec,
-    sort_key,
     usage,
 )
 
@@ -239,7 +238,8 @@ def assess_fleet(plans: Sequence[VehiclePlan], fleet: Fleet, model: RiskModel,
 
 
 def triage_key(p: VehiclePlan, r: Risk) -> tuple:
-    """Overdue and no-record first, then the rest; within each, the larger expected loss first.
+    """Overdue and no-record first, then the rest; within each, the larger expected loss first;
+    equal keys keep the default order (`plan.sort_key`: see `triage`).
 
     An unknown expected loss (no cost given) sorts as the largest: unknown must not look safe.
     Chains and gears come last, as on condition.
@@ -248,11 +248,13 @@ def triage_key(p: VehiclePlan, r: Risk) -> tuple:
         2 if p.status is Status.ON_CONDITION else 1)
     loss = r.expected_loss
     unknown_loss = loss is None and group < 2
-    return (group, 0 if unknown_loss else 1, -(loss or 0.0), sort_key(p))
+    return (group, 0 if unknown_loss else 1, -(loss or 0.0))
 
 
 def triage(plans: Sequence[VehiclePlan], risks: dict[str, Risk]) -> list[VehiclePlan]:
-    """The triage order: what to book first."""
+    """The triage order: what to book first. `plans` come in the default order, as
+    `plan_fleet` gives them: Python's sort is stable (documented for `sorted`), so plans with
+    equal triage keys keep that order, and it need not be keyed again."""
     return sorted(plans, key=lambda p: triage_key(p, risks[p.id]))
 
 

@@ -21,6 +21,10 @@ in the same run:
   is that work alone (`Session.read`: load, validate, plan) in the same run, and
   `load_stall` the longest the UI did not answer while it ran in the worker (`engine_cli`: the
   same work in a fresh interpreter, the garbage collector left as the command line has it);
+- **drawn**: the UI's drawing alone: the app started on a session already read and planned
+  (`DrawnApp`: no loading view, no worker) until the full first screen is on screen and the UI
+  idle, at 5,000 vehicles and at none (`drawn_none`: the same screen on a fleet of no vehicles,
+  "no vehicles yet" shown). What the UI adds for a big fleet, beside its fixed cost;
 - **filter** / **sort** at 10,000 vehicles: from the action (`MainScreen.set_view`, what the
   filter and sort dialogs and the find box call) until the table holds the new order, the screen
   shows it and the UI is idle. Each is the worst of a few kinds (a status filter, clearing it
@@ -68,7 +72,10 @@ from planner.generate import generate_fleet_text
 from planner.plan import Status
 from planner.risk import assess_fleet_plan
 from planner.tui import create_app
+from planner.tui.app import BeltplanApp
 from planner.tui.background import gc_paused
+from planner.tui.look import THEME
+from planner.tui.screens.main import MainScreen
 from planner.tui.session import Session
 from planner.tui.view import View
 
@@ -210,6 +217,34 @@ async def time_first(path: Path, want: Expected) -> tuple[float, float, float]:
     return paint, full, watch.stall
 
 
+class DrawnApp(BeltplanApp):
+    """The beltplan app started on a session already read and planned: only the drawing.
+
+    What the UI itself adds for a fleet's size, with the file's reading and planning left out
+    (the worker's part, `engine`); compared with the same on a fleet of no vehicles.
+    """
+
+    def on_mount(self, event: Any) -> None:
+        event.prevent_default()  # not the app's own start: no loading view, no worker
+        self.register_theme(THEME)
+        self.theme = THEME.name
+        self.push_screen(MainScreen())
+
+
+async def time_drawn(session: Session, check: Callable[[App[Any]], bool]) -> float:
+    """From constructing `DrawnApp` on `session` to its main screen on screen, UI idle."""
+    start = time.perf_counter()
+    app = DrawnApp(session)
+    async with app.run_test(size=SIZE):
+        return await settle(lambda: check(app), "the drawn screen", start)
+
+
+def read_session(path: Path) -> Session:
+    session = Session(path, AS_OF)
+    assert session.adopt(session.read())
+    return session
+
+
 def time_engine(path: Path) -> float:
     """The engine's part of the worker's read: load, validate, plan (no UI), the GC paused as
     the worker has it."""
@@ -222,6 +257,9 @@ def time_engine(path: Path) -> float:
 
 ENGINE_CLI = """
 import datetime as dt, sys, time
+from planner.tui.app import BeltplanApp
+from planner.tui.look import THEME
+from planner.tui.screens.main import MainScreen
 from planner.tui.session import Session
 start = time.perf_counter()
 Session(sys.argv[1], dt.date(2026, 12, 7)).read()
@@ -355,6 +393,16 @@ async def _measure(runs: int) -> dict[str, Any]:
                                ("reopen", reopen)):
                 r[key] = min(r[key], value)
             r["load_stall"] = max(r["load_stall"], stall)
+        none_path = Path(tmp) / "fleet_0.toml"
+        none_path.write_text(generate_fleet_text(0, seed=7), encoding="utf-8")
+        with cache_at("off"):
+            drawn_full, drawn_none = read_session(first_path), read_session(none_path)
+        r["drawn"] = r["drawn_none"] = float("inf")
+        for _ in range(runs + 2):
+            r["drawn"] = min(r["drawn"], await time_drawn(drawn_full,
+                                                          lambda app: _full(app, first_want)))
+            r["drawn_none"] = min(r["drawn_none"], await time_drawn(
+                drawn_none, lambda app: "no vehicles yet" in screen_text(app)))
         with cache_at("off"):  # never the user's own cache
             steps = await time_actions(action_path, action_want, runs + 2)  # cheap: more runs
             r.update(await time_replan(action_path, action_want, runs=3))
@@ -366,7 +414,7 @@ async def _measure(runs: int) -> dict[str, Any]:
 
 def measure(runs: int = 3) -> dict[str, Any]:
     """The UI figures in seconds: "first", "empty", "filter", "sort" (what bench_scale prints),
-    and "reopen" (the first screen with the fleet cached), "paint", "empty_paint", "engine", "engine_cli", "load_stall", "check", "replan",
+    and "reopen" (the first screen with the fleet cached), "drawn", "drawn_none", "paint", "empty_paint", "engine", "engine_cli", "load_stall", "check", "replan",
     "replan_stall", "steps" (each filter and sort)."""
     return asyncio.run(_measure(runs))
 
@@ -388,6 +436,10 @@ def main() -> int:
           f"worker runs it, GC paused ({r['engine_cli']:.3f} s in a fresh interpreter with the "
           f"GC on); the UI's own part: {(r['first'] - r['engine']) * ms:.0f} ms")
     print(f"      longest the UI did not answer while loading: {r['load_stall'] * ms:.0f} ms")
+    print(f"  the UI's drawing alone (the plan at hand, no loading view): {FIRST_N:,} vehicles "
+          f"{r['drawn'] * ms:.0f} ms, no vehicles {r['drawn_none'] * ms:.0f} ms, ratio "
+          f"{r['drawn'] / r['drawn_none']:.2f}; ratio {r['drawn'] / r['empty']:.2f} to the "
+          "empty Textual app")
     for name, seconds in r["steps"].items():
         print(f"  {ACTION_N:,} vehicles, {name:<24} {seconds * ms:5.0f} ms")
     print(f"  filter (worst kind) {r['filter'] * ms:.0f} ms, sort (worst kind) "
