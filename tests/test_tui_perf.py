@@ -458,6 +458,21 @@ def test_widths_of_numbers_are_measured_at_their_extremes(case):
     assert cols.natural_widths_of(column, records) == cols.natural_widths(column, cells)
 
 
+@settings(max_examples=200, deadline=None)
+@given(st.sampled_from(["label", "id", "drive"]),
+       st.lists(st.one_of(st.none(), st.text(st.characters(codec="utf-8",
+                                                            exclude_categories=("Cc", "Cs")),
+                                              max_size=40),
+                          st.text("abcXYZ 019-", max_size=40)), min_size=1, max_size=20))
+def test_widths_of_text_equal_the_widths_of_its_cells(name, values):
+    """Printable ASCII measured by length, the rest one by one, labels cut at their width:
+    the same widths as measuring each cell (the reference)."""
+    records = [{"id": f"V{k}", name: v} for k, v in enumerate(values)]
+    column = [cols.Column(name, "H")]
+    cells = [{name: cols.cell(r, name)} for r in records]
+    assert cols.natural_widths_of(column, records) == cols.natural_widths(column, cells)
+
+
 # -- the lazy table draws what Textual's DataTable draws --------------------------------------
 
 class TwoTables(App[None]):

@@ -8,6 +8,7 @@ columns step aside; the row line under the table still shows them for the highli
 
 from __future__ import annotations
 
+import datetime as dt
 from collections.abc import Iterable, Sequence
 from dataclasses import dataclass
 from typing import Any
@@ -84,11 +85,12 @@ def natural_widths_of(columns: Sequence[Column],
                       records: Sequence[dict[str, Any]]) -> dict[str, int]:
     """`natural_widths` of the cells of `records`, without building them.
 
-    A cell's width is that of its text (`cell` only styles it). Text and dates are measured
-    once per distinct value; a number's text (`export.display`: digits, separators, a fixed
-    number of decimals) is never narrower for a value further from zero, so the widest
-    number of a column is its smallest or its largest, or its smallest positive one (shown
-    as "<0.1 %" in a probability column).
+    A cell's width is that of its text (`cell` only styles it). A number's text
+    (`export.display`: digits, separators, a fixed number of decimals) is never narrower for a
+    value further from zero, so the widest number of a column is its smallest or its largest,
+    or its smallest positive one (shown as "<0.1 %" in a probability column). A date is always
+    ten characters (ISO 8601, `YYYY-MM-DD`), so one date stands for all. Printable ASCII text
+    is as wide as it is long; any other text is measured once per distinct value.
     """
     widths = {}
     for col in columns:
@@ -100,10 +102,21 @@ def natural_widths_of(columns: Sequence[Column],
             positive = [v for v in numbers if v > 0]
             probes += [min(numbers), max(numbers)] + ([min(positive)] if positive else [])
         others = [v for v in values if not isinstance(v, (int, float)) or isinstance(v, bool)]
+        dates = [v for v in others if type(v) is dt.date]  # not a datetime: longer text
+        others = [v for v in others if type(v) is not dt.date]
+        probes += dates[:1]
         try:
-            probes += set(others)
+            distinct = set(others)
         except TypeError:  # a list (not shown in the table today): measure each one
-            probes += others
+            distinct = others  # type: ignore[assignment]
+        plain = [v for v in distinct if isinstance(v, str) and v.isascii() and v.isprintable()]
+        if plain:
+            longest = max(plain, key=len)
+            probes.append(longest)  # as wide as the longest (cut the same way, if a label)
+            plain_set = set(plain)
+            distinct = [v for v in distinct  # type: ignore[assignment]
+                        if not (isinstance(v, str) and v in plain_set)]
+        probes += distinct
         widths[name] = max([len(col.heading)] + [cell_width(v, name) for v in probes])
     return widths
 
