@@ -401,6 +401,14 @@ _SPEC_SET = frozenset(SPEC_FIELDS)
 
 def plan_fleet(fleet: Fleet, as_of: dt.date) -> list[VehiclePlan]:
     """Every vehicle's plan, in the default order."""
+    plans = plans_in_file_order(fleet, as_of)
+    plans.sort(key=sort_key)
+    return plans
+
+
+def plans_in_file_order(fleet: Fleet, as_of: dt.date) -> list[VehiclePlan]:
+    """Every vehicle's plan, in the order of the file (the order they are made in, so that
+    work going through them all reads memory in order: at 100,000 vehicles that counts)."""
     shared: dict[tuple[str | None, Duty], Spec] = {}  # vehicles that override nothing share one
     plans = []
     for v in fleet.vehicles:
@@ -412,5 +420,4 @@ def plan_fleet(fleet: Fleet, as_of: dt.date) -> list[VehiclePlan]:
         else:
             spec = resolve_spec(v, fleet)
         plans.append(plan_vehicle(v, fleet, as_of, spec))
-    plans.sort(key=sort_key)
     return plans

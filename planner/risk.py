@@ -24,8 +24,9 @@ from planner.plan import (
     assumed_install,
     consequence_of,
     life_fraction,
-    plan_fleet,
+    plans_in_file_order,
     resolve_spec,
+    sort_key,
     usage,
 )
 
@@ -141,9 +142,14 @@ def fit_from_history(fleet: Fleet, as_of: dt.date,
     """
     failed: list[float] = []
     censored: list[float] = []
-    by_id = {p.id: p for p in plans} if plans is not None else {}
-    for v in fleet.vehicles:
-        f, c = life_records(v, fleet, as_of, by_id.get(v.id))
+    if plans is not None and len(plans) == len(fleet.vehicles) and all(
+            p.vehicle is v for p, v in zip(plans, fleet.vehicles, strict=True)):
+        pairs = list(zip(fleet.vehicles, plans, strict=True))  # in file order already
+    else:
+        by_id = {p.id: p for p in plans} if plans is not None else {}
+        pairs = [(v, by_id.get(v.id)) for v in fleet.vehicles]
+    for v, plan in pairs:
+        f, c = life_records(v, fleet, as_of, plan)
         failed += f
         censored += c
     if len(failed) < MIN_FAILURES_FOR_FIT:
@@ -325,9 +331,10 @@ def assess_fleet_plan(fleet: Fleet, as_of: dt.date, order: str = "triage") -> Fl
     """Plan every vehicle, assess its risk, and order: `triage` (default) or `due-date`."""
     if order not in ORDERS:
         raise ValueError(f"unknown order {order!r}")
-    plans = plan_fleet(fleet, as_of)  # already in due-date (default status) order
-    model = risk_model(fleet, as_of, plans, always_fit=False)
-    risks = assess_fleet(plans, fleet, model, as_of)
+    made = plans_in_file_order(fleet, as_of)
+    model = risk_model(fleet, as_of, made, always_fit=False)
+    risks = assess_fleet(made, fleet, model, as_of)
+    plans = sorted(made, key=sort_key)  # the default (due-date) order
     if order == "triage":
         plans = triage(plans, risks)
     return FleetAssessment(as_of, tuple(plans), risks, model)
