@@ -28,6 +28,7 @@ import os
 import pickle
 import secrets
 import sys
+import tempfile
 import time
 from importlib.metadata import PackageNotFoundError, version
 from pathlib import Path
@@ -49,45 +50,80 @@ def folder() -> Path | None:
     setting = os.environ.get(ENV, "")
     if setting.strip().lower() == "off":
         return None
-    if setting:
-        base = Path(setting).expanduser()
-    else:
-        xdg = os.environ.get("XDG_CACHE_HOME", "")
-        base = (Path(xdg) if xdg else Path.home() / ".cache") / "beltplan"
     try:
+        if setting:
+            base = Path(setting).expanduser()
+        else:
+            xdg = os.environ.get("XDG_CACHE_HOME", "")
+            base = (Path(xdg) if xdg else Path.home() / ".cache") / "beltplan"
         base.mkdir(mode=0o700, parents=True, exist_ok=True)
         info = base.stat()
-    except OSError:
+        if hasattr(os, "getuid"):
+            if info.st_uid != os.getuid():
+                return None  # someone else's folder
+            if info.st_mode & 0o077:  # the entries hold the fleet: for the user's eyes only
+                base.chmod(0o700)
+    except (OSError, RuntimeError):  # RuntimeError: no home folder to be found
         return None
-    if hasattr(os, "getuid") and (info.st_uid != os.getuid() or info.st_mode & 0o022):
-        return None  # someone else could put entries here
     return base
 
 
 def fingerprint() -> bytes:
-    """What an entry must have been written by: this code, this Python, this pydantic."""
+    """What an entry must have been written by: this code, this Python, this pydantic.
+
+    Worked out once, at the first read (`Session.read` asks before reading the file), so code
+    changed on disk while the UI runs cannot label the running code's entries as its own.
+    """
     global _fingerprint
     if _fingerprint is None:
-        h = hashlib.sha256()
-        h.update(sys.version.encode())
-        try:
-            h.update(version("pydantic").encode())
-        except PackageNotFoundError:  # pragma: no cover - pydantic is a dependency
-            pass
-        package = Path(__file__).resolve().parent
-        for source in sorted(package.rglob("*.py")):
-            h.update(source.relative_to(package).as_posix().encode() + b"\0")
-            h.update(source.read_bytes() + b"\0")
-        _fingerprint = h.digest()
+        _fingerprint = fingerprint_of(Path(__file__).resolve().parent)
     return _fingerprint
+
+
+def fingerprint_of(package: Path) -> bytes:
+    """SHA-256 over Python's and pydantic's versions and every module's path and source."""
+    h = hashlib.sha256()
+    h.update(sys.version.encode())
+    try:
+        h.update(version("pydantic").encode())
+    except PackageNotFoundError:  # pragma: no cover - pydantic is a dependency
+        pass
+    for source in sorted(package.rglob("*.py")):
+        h.update(source.relative_to(package).as_posix().encode() + b"\0")
+        h.update(source.read_bytes() + b"\0")
+    return h.digest()
 
 
 def get(digest: str) -> Fleet | None:
     """The validated fleet of the file whose bytes have this SHA-256, if cached and sound."""
+    try:
+        return _get(digest)
+    except Exception:  # noqa: BLE001 - whatever goes wrong here, the file is read as usual
+        return None
+
+
+def put(digest: str, fleet: Fleet) -> bool:
+    """Keep `fleet` as the fleet of the file whose bytes have this SHA-256; False if not kept.
+
+    `fleet` must be what `fileio.parse_fleet_text` gives for those bytes' text.
+    """
+    try:
+        return _put(digest, fleet)
+    except Exception:  # noqa: BLE001 - a cache that cannot be written is no cache, not an error
+        return False
+
+
+def entry_path(base: Path, digest: str) -> Path:
+    """Where the entry for a file's digest lives: also named by the code that wrote it, so two
+    versions of beltplan on one machine do not overwrite each other's entries."""
+    return base / f"{digest}-{fingerprint().hex()[:16]}{SUFFIX}"
+
+
+def _get(digest: str) -> Fleet | None:
     base = folder()
     if base is None or not _is_digest(digest):
         return None
-    entry = base / (digest + SUFFIX)
+    entry = entry_path(base, digest)
     try:
         data = entry.read_bytes()
         key = _key(base, create=False)
@@ -102,10 +138,7 @@ def get(digest: str) -> Fleet | None:
     payload = data[head:]
     if mark != fingerprint() or not hmac.compare_digest(sign, _sign(key, digest, payload)):
         return None
-    try:
-        fleet = pickle.loads(payload)
-    except Exception:  # a damaged entry that still signs cannot happen; read the file then
-        return None
+    fleet = pickle.loads(payload)  # signed with our key: written by this code, for this file
     if not isinstance(fleet, Fleet):
         return None
     try:
@@ -115,21 +148,18 @@ def get(digest: str) -> Fleet | None:
     return fleet
 
 
-def put(digest: str, fleet: Fleet) -> bool:
-    """Keep `fleet` as the fleet of the file whose bytes have this SHA-256; False if not kept."""
+def _put(digest: str, fleet: Fleet) -> bool:
     base = folder()
     if base is None or not _is_digest(digest):
         return False
-    try:
-        key = _key(base, create=True)
-        if key is None:
-            return False
-        payload = pickle.dumps(fleet, protocol=pickle.HIGHEST_PROTOCOL)
-        write_atomic(base / (digest + SUFFIX),
-                     MAGIC + fingerprint() + _sign(key, digest, payload) + payload)
-        _prune(base)
-    except Exception:  # noqa: BLE001 - a cache that cannot be written is no cache, not an error
+    key = _key(base, create=True)
+    if key is None:
         return False
+    payload = pickle.dumps(fleet, protocol=pickle.HIGHEST_PROTOCOL)
+    entry = entry_path(base, digest)
+    write_atomic(entry, MAGIC + fingerprint() + _sign(key, digest, payload) + payload)
+    entry.chmod(0o600)
+    _prune(base)
     return True
 
 
@@ -146,12 +176,20 @@ def _key(base: Path, create: bool) -> bytes | None:
     except FileNotFoundError:
         if not create:
             return None
+        # Written whole under a private name, then linked into place: never half a key, and
+        # of two processes making one at once, the first link wins and both use it.
+        fd, tmp = tempfile.mkstemp(prefix=".key.", dir=base)
         try:
-            fd = os.open(path, os.O_WRONLY | os.O_CREAT | os.O_EXCL, 0o600)
-        except FileExistsError:  # another process made it meanwhile
-            return _key(base, create=False)
-        with os.fdopen(fd, "wb") as fh:
-            fh.write(secrets.token_bytes(32))
+            with os.fdopen(fd, "wb") as fh:
+                fh.write(secrets.token_bytes(32))
+                fh.flush()
+                os.fsync(fh.fileno())
+            try:
+                os.link(tmp, path)
+            except FileExistsError:
+                pass
+        finally:
+            os.unlink(tmp)
         return _key(base, create=False)
     if hasattr(os, "getuid") and (info.st_uid != os.getuid() or info.st_mode & 0o077):
         return None
@@ -163,7 +201,7 @@ def _prune(base: Path) -> None:
     """Remove the least recently used entries beyond KEEP_BYTES in all (never the newest),
     and temporary files a killed write left (old ones only: a younger one may be in use)."""
     now = time.time()
-    for leftover in base.glob(".*" + SUFFIX + ".*.tmp"):
+    for leftover in [*base.glob(".*" + SUFFIX + ".*.tmp"), *base.glob(".key.*")]:
         try:
             if now - leftover.stat().st_mtime > STALE_SECONDS:
                 leftover.unlink()

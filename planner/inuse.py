@@ -342,6 +342,9 @@ def take_over(path: str | os.PathLike[str], me: Record) -> Claim | Unmarked:
 def release(claim: Claim) -> bool:
     """Remove the marker if it is still ours (never another window's); True when removed."""
     try:
+        seen = _read(claim.marker)
+        if seen is None or seen.record != claim.record:
+            return False  # another window's now: not even moved aside (a third could slip in)
         return _remove_if(claim.marker, lambda seen: seen.record == claim.record)
     except OSError:
         return False

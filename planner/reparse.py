@@ -15,8 +15,9 @@ whenever it cannot show that the short way is sound:
   inside a multi-line string, say);
 - the old tables, read alone, do not give back exactly the old fleet's vehicles (so the text
   around them does not change how they read);
-- the new tables, read alone, are not just vehicles, or anything in them has a problem (the
-  full parse then reports every problem, located, as the loader does).
+- the new tables do not end with a line break before the header that follows them (their last
+  line would run into it in the whole text), or, read alone, are not just vehicles, or anything
+  in them has a problem (the full parse then reports every problem, located, as the loader does).
 `tests/test_reparse.py` checks the result against the full parse over many random edits.
 """
 
@@ -67,6 +68,8 @@ def _quick(new: str, old: str, fleet: Fleet) -> Fleet | None:
         return None  # most of the text changed: reading it all is quicker
     old_block = old[block_start:block_end]
     new_block = new[block_start:block_end + len(new) - len(old)]
+    if block_end < len(old) and not new_block.endswith("\n"):
+        return None  # its last line would run into the next header: read alone, it differs
     old_raw = _vehicles_alone(old_block)
     if old_raw is None or first + len(old_raw) > len(fleet.vehicles):
         return None

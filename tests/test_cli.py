@@ -187,3 +187,23 @@ def test_a_command_holds_the_collector_off_only_while_it_runs(capsys, monkeypatc
     assert main(["check", str(COURIER)]) == 0
     assert main(["check", "no-such-file.toml"]) == 2
     assert seen == [False, False] and gc.isenabled()
+
+
+def test_readings_keeps_the_collector_on(courier_copy, tmp_path, capsys, monkeypatch):
+    """The TOML editor's documents hold reference cycles: without the collector, a readings
+    import of a big file grew to several GB (found in review)."""
+    import gc
+
+    seen: list[bool] = []
+    from planner.cli import cmd_readings
+    real = cmd_readings.run
+
+    def spy(args):
+        seen.append(gc.isenabled())
+        return real(args)
+
+    monkeypatch.setattr(cmd_readings, "run", spy)
+    csv_file = tmp_path / "readings.csv"
+    csv_file.write_text("id,date,odometer\nKL-01,2026-12-01,999999\n", encoding="utf-8")
+    main(["readings", str(courier_copy), "--from", str(csv_file)])
+    assert seen == [True]

@@ -28,7 +28,7 @@ def cache_dir() -> Path:
 
 
 def entry_of(path: Path) -> Path:
-    return cache_dir() / (digest_of(path.read_bytes()) + fleetcache.SUFFIX)
+    return fleetcache.entry_path(cache_dir(), digest_of(path.read_bytes()))
 
 
 @pytest.mark.parametrize("example", [COURIER, GARAGE])
@@ -85,7 +85,7 @@ def test_a_changed_file_is_read_afresh(tmp_path):
 def _entry_bytes() -> tuple[str, Path, bytes]:
     loaded = load_fleet(COURIER)
     fleetcache.put(loaded.digest, loaded.fleet)
-    entry = cache_dir() / (loaded.digest + fleetcache.SUFFIX)
+    entry = fleetcache.entry_path(cache_dir(), loaded.digest)
     return loaded.digest, entry, entry.read_bytes()
 
 
@@ -112,24 +112,73 @@ def test_an_entry_of_other_code_is_not_used(monkeypatch):
     assert fleetcache.get(digest) is None
 
 
-def test_the_fingerprint_covers_the_planner_source():
-    """Any module's source is part of it: a rule changed in the engine is new code."""
+def test_the_fingerprint_changes_with_any_byte_of_the_planner_source(tmp_path):
+    """A rule changed in any module is new code: its entries are not the old code's."""
+    import shutil
     package = Path(fleetcache.__file__).parent
-    sources = {p.relative_to(package).as_posix() for p in package.rglob("*.py")}
-    assert {"validate.py", "fleet.py", "fileio.py", "tui/session.py"} <= sources
-    before = fleetcache.fingerprint()
-    fleetcache._fingerprint = None
-    assert fleetcache.fingerprint() == before  # stable: the same code gives the same mark
+    copy = tmp_path / "planner"
+    shutil.copytree(package, copy, ignore=shutil.ignore_patterns("__pycache__"))
+    assert fleetcache.fingerprint_of(copy) == fleetcache.fingerprint()
+    rule = copy / "plan.py"
+    rule.write_text(rule.read_text(encoding="utf-8").replace("days", "dayz", 1),
+                    encoding="utf-8")
+    assert fleetcache.fingerprint_of(copy) != fleetcache.fingerprint()
 
 
-def test_a_folder_others_can_write_to_is_not_used(tmp_path, monkeypatch):
+def test_a_folder_others_can_read_is_made_private_and_entries_are_the_users_only(
+        tmp_path, monkeypatch):
     shared = tmp_path / "shared-cache"
     shared.mkdir()
     shared.chmod(0o777)
     monkeypatch.setenv(fleetcache.ENV, str(shared))
     loaded = load_fleet(COURIER)
+    assert fleetcache.put(loaded.digest, loaded.fleet)
+    assert stat.S_IMODE(shared.stat().st_mode) == 0o700
+    entry = fleetcache.entry_path(shared, loaded.digest)
+    assert stat.S_IMODE(entry.stat().st_mode) == 0o600
+
+
+def test_no_home_folder_means_no_cache_not_an_error(monkeypatch, tmp_path):
+    """Path.home() raises RuntimeError when no home can be found (Python docs, pathlib)."""
+    monkeypatch.delenv(fleetcache.ENV)
+    monkeypatch.delenv("XDG_CACHE_HOME", raising=False)
+
+    def no_home() -> Path:
+        raise RuntimeError("Could not determine home directory.")
+
+    monkeypatch.setattr(Path, "home", staticmethod(no_home))
+    loaded = load_fleet(COURIER)
+    assert fleetcache.get(loaded.digest) is None
     assert not fleetcache.put(loaded.digest, loaded.fleet)
-    assert list(shared.iterdir()) == []
+    session = Session(COURIER, AS_OF)
+    assert session.load() and session.fleet == loaded.fleet
+
+
+def test_a_half_written_key_is_never_used(monkeypatch):
+    loaded = load_fleet(COURIER)
+    (cache_dir() / "key").write_bytes(b"short")
+    assert not fleetcache.put(loaded.digest, loaded.fleet)
+    (cache_dir() / "key").unlink()
+    assert fleetcache.put(loaded.digest, loaded.fleet)
+    assert len((cache_dir() / "key").read_bytes()) == 32
+    assert not [p for p in cache_dir().iterdir() if p.name.startswith(".key.")]
+
+
+def test_a_saved_text_that_reads_back_differently_is_not_kept_and_is_reported(courier_copy):
+    """The cache keeps only fleets a whole read agrees with: a saved text's fleet (from the
+    quick check of its edits) is read whole first."""
+    from planner.errors import PlannerError
+    session = Session(courier_copy, AS_OF)
+    session.adopt(session.read())
+    session.apply(session.text.replace('label = "', 'label = "x', 1), "label")
+    session.save()
+    wrong = session.fleet.model_copy(update={"vehicles": session.fleet.vehicles[1:]})
+    session.loaded = type(session.loaded)(session.loaded.path, wrong, session.loaded.text,
+                                          session.loaded.digest, session.loaded.bom)
+    job = session.cache_job()
+    with pytest.raises(PlannerError, match="reads back differently"):
+        job()
+    assert fleetcache.get(session.loaded.digest) is None
 
 
 def test_the_key_is_private_and_off_means_off(monkeypatch):
@@ -158,7 +207,7 @@ def test_the_oldest_entries_go_beyond_the_size_kept(monkeypatch):
     for k, example in enumerate((COURIER, GARAGE)):
         loaded = load_fleet(example)
         fleetcache.put(loaded.digest, loaded.fleet)
-        entry = cache_dir() / (loaded.digest + fleetcache.SUFFIX)
+        entry = fleetcache.entry_path(cache_dir(), loaded.digest)
         os.utime(entry, (1_000_000 + k, 1_000_000 + k))
         names.append(entry)
     fleetcache._prune(cache_dir())

@@ -171,6 +171,18 @@ def test_release_removes_only_our_own_marker(tmp_path):
     assert inuse.release(theirs) is False  # gone already: no error either
 
 
+def test_releasing_a_marker_taken_over_leaves_it_in_place(tmp_path):
+    """Found in review: moving another window's marker aside, even briefly, let a third
+    window's claim slip in. Released, it is not moved at all (the same file, not a copy)."""
+    path = fleet(tmp_path)
+    ours = inuse.claim(path, record(pid=os.getpid(), token="ours"))
+    inuse.take_over(path, record(pid=alive_pid(), user="ben", token="theirs"))
+    before = os.stat(marker_of(path))
+    assert inuse.release(ours) is False
+    after = os.stat(marker_of(path))
+    assert (after.st_ino, after.st_ctime_ns) == (before.st_ino, before.st_ctime_ns)
+
+
 def test_release_compares_the_whole_record_not_only_the_process(tmp_path):
     path = fleet(tmp_path)
     ours = inuse.claim(path, record(pid=os.getpid(), token="one"))

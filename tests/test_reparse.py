@@ -98,6 +98,42 @@ def test_every_vehicle_of_the_examples_edited(name):
             assert_same_as_full(new, loaded.text, loaded.fleet)
 
 
+def test_a_change_that_joins_a_line_to_the_next_header_is_read_whole():
+    """Found in review: the changed tables read alone parse, but in the whole text their last
+    line runs into the header after them (TOML v1.0.0: a table header stands on its own line)."""
+    heads = [i for i in range(len(BASE)) if BASE.startswith("[[vehicles]]", i)]
+    for new in (BASE[:heads[5]] + "#" + BASE[heads[5]:],  # a vehicle's header commented out
+                BASE[:heads[3] - 2] + BASE[heads[3]:],  # `work = "…"[[vehicles]]`
+                BASE[:heads[7] - 1] + BASE[heads[7]:]):  # the line break before a header
+        assert_same_as_full(new)
+    crlf = BASE.replace("\n", "\r\n")
+    crlf_fleet = parse_fleet_text(crlf, "g.toml")
+    at = crlf.index("[[vehicles]]", crlf.index("[[vehicles]]") + 1)
+    assert_same_as_full(crlf[:at - 4] + crlf[at:], crlf, crlf_fleet)
+
+
+def test_a_comment_glued_to_a_table_after_the_vehicles_is_read_whole():
+    """Found in review: two valid fleets that differ. The comment, with no line break, turns
+    `[engines.zz]` into comment text, so its keys belong to the last vehicle."""
+    old = BASE + ('\n[[vehicles]]\nid = "LAST"\nengine = "gen-p14"\nin_service = 2024-01-02\n'
+                  '\n[engines.zz]\nfuel = "diesel"\ndrive = "chain"\ninterference = "unknown"\n')
+    fleet = parse_fleet_text(old, "g.toml")
+    at = old.index("[engines.zz]")
+    new = old[:at] + "# spare profile " + old[at:]
+    assert _quick(new, old, fleet) is None
+    assert_same_as_full(new, old, fleet)
+
+
+@pytest.mark.parametrize("piece", ["#", "x", " ", "", "\t#"])
+def test_every_change_at_a_header_equals_the_full_parse(piece):
+    """Insert at, and delete up to, the start of every header line."""
+    heads = [i for i in range(len(BASE)) if BASE.startswith("[", i) and BASE[i - 1] == "\n"]
+    for at in heads:
+        assert_same_as_full(BASE[:at] + piece + BASE[at:])
+        for cut in (1, 2):
+            assert_same_as_full(BASE[:at - cut] + piece + BASE[at:])
+
+
 FRAGMENTS = ['"""', "'''", '[[vehicles]]\nid = "Q-1"\nengine = "gen-p14"\n'
              'in_service = 2020-01-01\n', "[engines.zz]\n", "[vehicles]\n", "x = [\n", "]\n",
              "}", "#", "\n", 'label = "dup"\n', "odometer = -5\n", "readings = []\n",

@@ -25,7 +25,7 @@ def no_delay(monkeypatch):
 
 
 def entry(path: Path) -> Path:
-    return Path(os.environ[fleetcache.ENV]) / (digest_of(path.read_bytes()) + fleetcache.SUFFIX)
+    return fleetcache.entry_path(Path(os.environ[fleetcache.ENV]), digest_of(path.read_bytes()))
 
 
 @sync

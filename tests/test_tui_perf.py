@@ -448,6 +448,7 @@ _NUMBER_FIELDS = {"distance_remaining": st.integers(-10**9, 10**9),
     lambda name: st.tuples(st.just(name), st.lists(st.one_of(st.none(), _NUMBER_FIELDS[name]),
                                                     min_size=1, max_size=30))))
 @example(("p_fail_horizon", [0.0, 0.0005, 0.05]))  # "<0.1 %" is wider than both ends
+@example(("distance_remaining", [200000, 150000.0, 1.0]))  # a float's decimal (review)
 def test_widths_of_numbers_are_measured_at_their_extremes(case):
     """Measuring only the smallest, largest and smallest positive number of a column gives
     the width of its widest cell (each cell measured here, the reference)."""

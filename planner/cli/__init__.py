@@ -18,6 +18,7 @@ from planner.errors import PlannerError
 
 # One line per command module; the order is the order of `beltplan --help`.
 COMMANDS = ("check", "import", "list", "readings", "risk", "week", "schema")
+NO_CYCLES = ("check", "list", "risk", "week", "schema")  # read, plan, print: no edited TOML
 
 DESCRIPTION = """\
 Timing-belt service and failure-risk planner.
@@ -70,13 +71,15 @@ def main(argv: Sequence[str] | None = None) -> int:
     if not getattr(args, "run", None):
         parser.print_help()
         return EXIT_USER_ERROR
-    batch = first in COMMANDS  # a command that reads, plans, prints and ends (not the UI)
+    batch = first in NO_CYCLES
     was_collecting = gc.isenabled()
     if batch:
         # Reading and planning build hundreds of thousands of objects with no reference cycles
         # (tests/test_tui_perf.py checks), which the cyclic collector would walk again and
         # again: about a tenth of the time at 10,000 vehicles. Refcounting frees them all the
-        # same. The UI holds the collector off only while it reads (`tui/background.py`).
+        # same. Not for `readings` and `import`: the style-keeping TOML editor leaves cycles,
+        # and without the collector their memory would grow many times over. The UI holds the
+        # collector off only while it reads (`tui/background.py`).
         gc.disable()
     try:
         return int(args.run(args) or 0)

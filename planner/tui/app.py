@@ -176,6 +176,8 @@ class BeltplanApp(EditActions, FileActions, ImportActions, InUseActions, WeekAct
     async def _cache_worker(self, job: Callable[[], bool]) -> None:
         try:
             await off_thread(job)
+        except PlannerError as err:  # the saved text did not read back as checked
+            self.say(err.render(), "error")
         except Exception as exc:  # a cache is an aid: never an error for the user
             self.log.error("keeping the fleet in the cache failed", exc)
 

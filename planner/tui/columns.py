@@ -86,11 +86,12 @@ def natural_widths_of(columns: Sequence[Column],
     """`natural_widths` of the cells of `records`, without building them.
 
     A cell's width is that of its text (`cell` only styles it). A number's text
-    (`export.display`: digits, separators, a fixed number of decimals) is never narrower for a
-    value further from zero, so the widest number of a column is its smallest or its largest,
-    or its smallest positive one (shown as "<0.1 %" in a probability column). A date is always
-    ten characters (ISO 8601, `YYYY-MM-DD`), so one date stands for all. Printable ASCII text
-    is as wide as it is long; any other text is measured once per distinct value.
+    (`export.display`: digits, separators, a fixed number of decimals for a float) is never
+    narrower for a value of its kind further from zero, so the widest number of a column is,
+    of its integers and of its floats, the smallest or the largest, or the smallest positive
+    (shown as "<0.1 %" in a probability column). A date is always ten characters (ISO 8601,
+    `YYYY-MM-DD`), so one date stands for all. Printable ASCII text is as wide as it is long;
+    any other text is measured once per distinct value.
     """
     widths = {}
     for col in columns:
@@ -98,9 +99,12 @@ def natural_widths_of(columns: Sequence[Column],
         values = [rec.get(name) for rec in records]
         numbers = [v for v in values if isinstance(v, (int, float)) and not isinstance(v, bool)]
         probes: list[Any] = []
-        if numbers:
-            positive = [v for v in numbers if v > 0]
-            probes += [min(numbers), max(numbers)] + ([min(positive)] if positive else [])
+        for kind in (int, float):  # each kind apart: `1.0` shows a decimal, `1` none
+            same = [v for v in numbers if type(v) is kind]
+            if same:
+                positive = [v for v in same if v > 0]
+                probes += [min(same), max(same)] + ([min(positive)] if positive else [])
+        probes += [v for v in numbers if type(v) not in (int, float)]  # a subclass: each one
         others = [v for v in values if not isinstance(v, (int, float)) or isinstance(v, bool)]
         dates = [v for v in others if type(v) is dt.date]  # not a datetime: longer text
         others = [v for v in others if type(v) is not dt.date]

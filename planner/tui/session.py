@@ -24,6 +24,7 @@ from planner import export, fleetcache
 from planner.errors import PlannerError
 from planner.fileio import (
     LoadedFleet,
+    backup_path,
     digest_of,
     load_fleet,
     parse_fleet_text,
@@ -93,6 +94,7 @@ class Session:
         self._cache: Planned | None = None
         self._checked: tuple[str, Fleet] | None = None  # the last text `check` accepted
         self._kept: set[str] = set()  # digests whose fleet is in the cache (or was offered)
+        self._unread: set[str] = set()  # digests saved here, their fleet from the quick check
 
     # -- reading ------------------------------------------------------------------------------
     def load(self) -> bool:
@@ -108,7 +110,7 @@ class Session:
             return Reading(None, err)
 
     def _cached(self, digest: str) -> Fleet | None:
-        fleet = fleetcache.get(digest)
+        fleet = fleetcache.get(digest)  # never raises: a cache problem means "not cached"
         if fleet is not None:
             self._kept.add(digest)  # nothing to write back
         return fleet
@@ -186,15 +188,33 @@ class Session:
             raise PlannerError("nothing to save", "The file did not load.")
         assert self.fleet is not None  # the text was checked: `fleet` is what it gives
         self.loaded = save_fleet_text(self.loaded, self.text, self.fleet)
+        self._unread.add(self.loaded.digest)  # its fleet came from the quick check
 
     def cache_job(self) -> Callable[[], bool] | None:
         """Work for a worker thread: keep the fleet of the file as it is on disk in the cache
-        (`fleetcache`), so the next open is quick; None when there is nothing new to keep."""
+        (`fleetcache`), so the next open is quick; None when there is nothing new to keep.
+
+        A saved text's fleet came from the check of its edits (`reparse`), not from reading
+        the whole text: the job reads it whole first and keeps the fleet only when both agree.
+        When they do not, or the text does not read at all, it raises `PlannerError` (a bug
+        of the quick check; the file on disk is what was saved, its previous version in .bak).
+        """
         loaded = self.loaded
         if loaded is None or loaded.digest in self._kept:
             return None
         self._kept.add(loaded.digest)
-        return lambda: fleetcache.put(loaded.digest, loaded.fleet)
+        verify = loaded.digest in self._unread
+
+        def job() -> bool:
+            if verify and parse_fleet_text(loaded.text, str(loaded.path)) != loaded.fleet:
+                raise PlannerError(
+                    f"{loaded.path} was saved, but reads back differently from what was "
+                    "checked: this is a bug in beltplan, please report it",
+                    f"Reload (ctrl+r) to see the file as it reads now; the version before the "
+                    f"save is in {backup_path(loaded.path).name}.")
+            return fleetcache.put(loaded.digest, loaded.fleet)
+
+        return job
 
     def save_copy(self) -> Path:
         """Write the current text beside the file, for when the file itself cannot be saved."""
