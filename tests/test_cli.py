@@ -169,20 +169,28 @@ def test_every_command_has_help_with_an_example(command, capsys):
     assert "example" in capsys.readouterr().out
 
 
-def test_a_command_holds_the_collector_off_only_while_it_runs(capsys, monkeypatch):
-    """The batch commands run with the cyclic collector off (their objects hold no cycles);
-    afterwards it is as it was, also when the command fails."""
+def collector_while_running(monkeypatch, module) -> list[bool]:
+    """Whether the cyclic collector was on each time `module`'s command ran."""
     import gc
 
     seen: list[bool] = []
-    from planner.cli import cmd_check
-    real = cmd_check.run
+    real = module.run
 
     def spy(args):
         seen.append(gc.isenabled())
         return real(args)
 
-    monkeypatch.setattr(cmd_check, "run", spy)
+    monkeypatch.setattr(module, "run", spy)
+    return seen
+
+
+def test_a_command_holds_the_collector_off_only_while_it_runs(capsys, monkeypatch):
+    """The batch commands run with the cyclic collector off (their objects hold no cycles);
+    afterwards it is as it was, also when the command fails."""
+    import gc
+
+    from planner.cli import cmd_check
+    seen = collector_while_running(monkeypatch, cmd_check)
     assert gc.isenabled()
     assert main(["check", str(COURIER)]) == 0
     assert main(["check", "no-such-file.toml"]) == 2
@@ -192,17 +200,8 @@ def test_a_command_holds_the_collector_off_only_while_it_runs(capsys, monkeypatc
 def test_readings_keeps_the_collector_on(courier_copy, tmp_path, capsys, monkeypatch):
     """The TOML editor's documents hold reference cycles: without the collector, a readings
     import of a big file grew to several GB (found in review)."""
-    import gc
-
-    seen: list[bool] = []
     from planner.cli import cmd_readings
-    real = cmd_readings.run
-
-    def spy(args):
-        seen.append(gc.isenabled())
-        return real(args)
-
-    monkeypatch.setattr(cmd_readings, "run", spy)
+    seen = collector_while_running(monkeypatch, cmd_readings)
     csv_file = tmp_path / "readings.csv"
     csv_file.write_text("id,date,odometer\nKL-01,2026-12-01,999999\n", encoding="utf-8")
     main(["readings", str(courier_copy), "--from", str(csv_file)])
