@@ -186,6 +186,27 @@ async def test_read_only_then_open_anyway_and_save_from_the_refusal(tmp_path):
 
 
 @sync
+async def test_save_and_quit_from_a_read_only_window_then_save_anyway_quits(tmp_path):
+    """Found in review: the save went through, the quit asked for was forgotten."""
+    path = copy_example(tmp_path)
+    other_window(path)
+    app = app_on(path)
+    async with app.run_test(size=SMALL) as pilot:
+        await asked(pilot)
+        await pilot.press("enter")
+        await until(pilot, lambda: screen_name(app) == "MainScreen")
+        await record_job(pilot)
+        await pilot.press("q")
+        await asked(pilot)
+        await pilot.click("#ask-save")
+        await until(pilot, lambda: "Read-only" in str(app.screen.query_one(".panel")
+                                                      .border_title), what="refusal")
+        await pilot.click("#ask-anyway")
+        await until(pilot, lambda: not app.is_running, what="quit after the save")
+    assert "odometer = 226000" in path.read_text()
+
+
+@sync
 async def test_quit_releases_the_marker(tmp_path):
     path = copy_example(tmp_path)
     app = app_on(path)

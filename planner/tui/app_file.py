@@ -27,7 +27,7 @@ class FileActions:
         """Save; on refusal explain and offer the ways out. True when saved."""
         session = self.session
         if self.read_only:  # another window has the file (see app_inuse)
-            self.refuse_read_only()
+            self.refuse_read_only(then_quit)
             return False
         try:
             session.save()

@@ -150,12 +150,15 @@ class InUseActions:
                                       ("anyway", "Open anyway", "warning"),
                                       ("quit", "Quit", "default")]), done)
 
-    def take_over_in_background(self: BeltplanApp, then_save: bool = False) -> None:
-        """Make the marker this window's, in a worker; then save when `then_save`."""
-        self.run_worker(self._take_over_worker(then_save), group="in-use", exclusive=True,
-                        exit_on_error=False)
+    def take_over_in_background(self: BeltplanApp, then_save: bool = False,
+                                then_quit: bool = False) -> None:
+        """Make the marker this window's, in a worker; then save when `then_save` (and quit
+        after the save when `then_quit`)."""
+        self.run_worker(self._take_over_worker(then_save, then_quit), group="in-use",
+                        exclusive=True, exit_on_error=False)
 
-    async def _take_over_worker(self: BeltplanApp, then_save: bool) -> None:
+    async def _take_over_worker(self: BeltplanApp, then_save: bool,
+                                then_quit: bool = False) -> None:
         session, me, claims = self.session, self._me(), self._claims
 
         def work() -> Claim | Unmarked:
@@ -185,11 +188,12 @@ class InUseActions:
                      f"{made.reason}.", "warning")
         self._show_titles()
         if then_save:
-            self.save_now()
+            self.save_now(then_quit=then_quit)
 
     # -- saving while read-only ---------------------------------------------------------------
-    def refuse_read_only(self: BeltplanApp) -> None:
-        """The save of a read-only window: nothing written; say why and the ways out."""
+    def refuse_read_only(self: BeltplanApp, then_quit: bool = False) -> None:
+        """The save of a read-only window: nothing written; say why and the ways out (a save
+        asked for on the way out quits once it is done)."""
         session, held = self.session, self.holder
         n = len(session.history)
         whom = f"{held.who()} has it open (since {held.since(clock.utc_now())})" if held \
@@ -207,7 +211,7 @@ class InUseActions:
             if answer == "copy":
                 self.keep_copy()
             elif answer == "anyway":
-                self.take_over_in_background(then_save=True)
+                self.take_over_in_background(then_save=True, then_quit=then_quit)
 
         self.last_message = f"Not saved: {session.path} is open read-only in this window."
         self.push_screen(AskDialog("Read-only", question,
