@@ -142,14 +142,9 @@ def fit_from_history(fleet: Fleet, as_of: dt.date,
     """
     failed: list[float] = []
     censored: list[float] = []
-    if plans is not None and len(plans) == len(fleet.vehicles) and all(
-            p.vehicle is v for p, v in zip(plans, fleet.vehicles, strict=True)):
-        pairs = list(zip(fleet.vehicles, plans, strict=True))  # in file order already
-    else:
-        by_id = {p.id: p for p in plans} if plans is not None else {}
-        pairs = [(v, by_id.get(v.id)) for v in fleet.vehicles]
-    for v, plan in pairs:
-        f, c = life_records(v, fleet, as_of, plan)
+    by_id = {p.id: p for p in plans} if plans is not None else {}
+    for v in fleet.vehicles:
+        f, c = life_records(v, fleet, as_of, by_id.get(v.id))
         failed += f
         censored += c
     if len(failed) < MIN_FAILURES_FOR_FIT:

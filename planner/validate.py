@@ -85,9 +85,9 @@ def rebuild_fleet(fleet: Fleet, start: int, stop: int, raw_vehicles: list[Any]) 
     """`build_fleet` of the data that gave `fleet`, its vehicles[start:stop] replaced by the
     raw tables `raw_vehicles` (all else the same); raise `PlannerError` on any problem.
 
-    The new tables are validated one by one as `build_fleet` does, and the rules that look
-    across vehicles run over the whole new list. The problems are not located or complete
-    (the caller parses the whole text to report them).
+    The new tables are validated one by one as `build_fleet` does, with the rules of one
+    vehicle (`check_vehicle`); the rule across vehicles (unique ids) runs over the whole list.
+    The problems are not located or complete (the caller parses the whole text to report them).
     """
     problems: list[Problem] = []
     fresh: list[Vehicle] = []
@@ -100,8 +100,12 @@ def rebuild_fleet(fleet: Fleet, start: int, stop: int, raw_vehicles: list[Any]) 
         if vehicle is not None:
             fresh.append(vehicle)
     vehicles = fleet.vehicles[:start] + fresh + fleet.vehicles[stop:]
-    if not problems:
-        problems.extend(check_vehicles(enumerate(vehicles), fleet.engines))
+    if not problems:  # the other vehicles passed their own rules already: only theirs again
+        for k, vehicle in enumerate(fresh):
+            problems.extend(check_vehicle(start + k, vehicle, fleet.engines, set(fleet.engines)))
+        first_seen: dict[str, int] = {}
+        for index, vehicle in enumerate(vehicles):
+            problems.extend(_duplicate_id(index, vehicle, first_seen))
     if problems:
         raise PlannerError("The fleet file has problems", f"{len(problems)} found", problems)
     return fleet.model_copy(update={"vehicles": vehicles})
@@ -158,38 +162,49 @@ def check_vehicles(
     problems: list[Problem] = []
     first_seen: dict[str, int] = {}
     for index, v in vehicles:
-        base: Path = ("vehicles", index)
+        problems.extend(_duplicate_id(index, v, first_seen))
+        problems.extend(check_vehicle(index, v, engines, engine_ids))
+    return problems
 
-        def add(msg: str, *field: str | int, hint: str = "", _v: Vehicle = v,
-                _base: Path = base) -> None:
-            problems.append(Problem(msg, _base + tuple(field), hint=hint, vehicle=_v.id))
 
-        if v.id in first_seen:
+def _duplicate_id(index: int, v: Vehicle, first_seen: dict[str, int]) -> list[Problem]:
+    """The one rule across vehicles: each id once (`first_seen` carries the ids so far)."""
+    if v.id not in first_seen:
+        first_seen[v.id] = index
+        return []
+    return [Problem(f"id {v.id!r} is already used by vehicle #{first_seen[v.id] + 1}",
+                    ("vehicles", index, "id"),
+                    hint="give every vehicle its own id (fleet number or plate)",
+                    vehicle=v.id)]
+
+
+def check_vehicle(index: int, v: Vehicle, engines: dict[str, EngineProfile],
+                  engine_ids: set[str]) -> list[Problem]:
+    """The rules of one vehicle with its profile: a known profile, the drive's intervals,
+    dates and odometers in order."""
+    problems: list[Problem] = []
+    base: Path = ("vehicles", index)
+
+    def add(msg: str, *field: str | int, hint: str = "") -> None:
+        problems.append(Problem(msg, base + tuple(field), hint=hint, vehicle=v.id))
+
+    profile = None
+    if v.engine is not None:
+        profile = engines.get(v.engine)
+        if v.engine not in engine_ids:
+            near = difflib.get_close_matches(v.engine, sorted(engine_ids), n=1)
+            known = ", ".join(sorted(engine_ids)) or "none"
             add(
-                f"id {v.id!r} is already used by vehicle #{first_seen[v.id] + 1}",
-                "id",
-                hint="give every vehicle its own id (fleet number or plate)",
+                f"unknown engine profile {v.engine!r}",
+                "engine",
+                hint=(f"did you mean {near[0]!r}? " if near else "")
+                + f"define [engines.{v.engine}] or use one of: {known}",
             )
-        else:
-            first_seen[v.id] = index
-
-        profile = None
-        if v.engine is not None:
-            profile = engines.get(v.engine)
-            if v.engine not in engine_ids:
-                near = difflib.get_close_matches(v.engine, sorted(engine_ids), n=1)
-                known = ", ".join(sorted(engine_ids)) or "none"
-                add(
-                    f"unknown engine profile {v.engine!r}",
-                    "engine",
-                    hint=(f"did you mean {near[0]!r}? " if near else "")
-                    + f"define [engines.{v.engine}] or use one of: {known}",
-                )
-        spec = {f: _resolved(v, profile, f) for f in ("drive", "interval_distance",
-                                                       "interval_months")}
-        if v.engine is None or profile is not None:  # an unknown profile is reported above
-            _check_drive(spec, v, add)
-        _check_dates_and_odometers(v, add)
+    spec = {f: _resolved(v, profile, f) for f in ("drive", "interval_distance",
+                                                   "interval_months")}
+    if v.engine is None or profile is not None:  # an unknown profile is reported above
+        _check_drive(spec, v, add)
+    _check_dates_and_odometers(v, add)
     return problems
 
 

@@ -167,16 +167,21 @@ async def test_open_anyway_takes_the_marker_over_and_saves(tmp_path):
     assert not marker_of(path).exists()
 
 
+async def read_only_with_a_change(pilot) -> None:
+    """Answer the question with read-only (enter, the default), then record a belt job."""
+    await asked(pilot)
+    await pilot.press("enter")
+    await until(pilot, lambda: screen_name(pilot.app) == "MainScreen")
+    await record_job(pilot)
+
+
 @sync
 async def test_read_only_then_open_anyway_and_save_from_the_refusal(tmp_path):
     path = copy_example(tmp_path)
     other_window(path)
     app = app_on(path)
     async with app.run_test(size=SMALL) as pilot:
-        await asked(pilot)
-        await pilot.press("enter")
-        await until(pilot, lambda: screen_name(app) == "MainScreen")
-        await record_job(pilot)
+        await read_only_with_a_change(pilot)
         await pilot.press("ctrl+s")
         await asked(pilot)
         await pilot.click("#ask-anyway")
@@ -192,10 +197,7 @@ async def test_save_and_quit_from_a_read_only_window_then_save_anyway_quits(tmp_
     other_window(path)
     app = app_on(path)
     async with app.run_test(size=SMALL) as pilot:
-        await asked(pilot)
-        await pilot.press("enter")
-        await until(pilot, lambda: screen_name(app) == "MainScreen")
-        await record_job(pilot)
+        await read_only_with_a_change(pilot)
         await pilot.press("q")
         await asked(pilot)
         await pilot.click("#ask-save")

@@ -67,7 +67,7 @@ from planner import fleetcache
 from planner.fileio import load_fleet
 from planner.generate import generate_fleet_text
 from planner.risk import assess_fleet_plan
-from tests.benchmarks.bench_ui import AS_OF, FIRST_N, SIZE, Expected, _rows_painted
+from tests.benchmarks.bench_ui import AS_OF, FIRST_N, SIZE, Expected, _rows_painted, cache_at
 
 ROOT = Path(__file__).resolve().parents[2]
 COURIER = "fleet_examples/courier_fleet.toml"  # relative to ROOT, as a user would type it
@@ -346,17 +346,10 @@ def measure(runs: int = RUNS) -> dict[str, Any]:
 
 def _fill_cache(path: Path, folder: str) -> None:
     """Put the fleet of `path` in the cache at `folder`, as the UI does after a read."""
-    saved = os.environ.get(fleetcache.ENV)
-    os.environ[fleetcache.ENV] = folder
-    try:
+    with cache_at(folder):
         loaded = load_fleet(path)
         if not fleetcache.put(loaded.digest, loaded.fleet):
             raise RuntimeError(f"the fleet cache at {folder} could not be written")
-    finally:
-        if saved is None:
-            del os.environ[fleetcache.ENV]
-        else:
-            os.environ[fleetcache.ENV] = saved
 
 
 def main(argv: Sequence[str] | None = None) -> int:
