@@ -13,7 +13,15 @@ import re
 from enum import StrEnum
 from typing import Annotated, Literal
 
-from pydantic import AfterValidator, BaseModel, BeforeValidator, ConfigDict, Field, Strict
+from pydantic import (
+    AfterValidator,
+    BaseModel,
+    BeforeValidator,
+    ConfigDict,
+    Field,
+    Strict,
+    model_validator,
+)
 from pydantic.dataclasses import dataclass as pydantic_dataclass
 from pydantic.fields import FieldInfo
 
@@ -236,6 +244,9 @@ class Vehicle(DriveSpec):
     notes: ShortText = Field(default="", description="Free text kept with the vehicle.")
 
 
+OLD_SETTING_NAMES = {"due_soon_distance": "near_limit_distance", "due_soon_days": "near_limit_days"}
+
+
 class FleetSettings(_Model):
     """The [fleet] table: names, units and warning thresholds."""
 
@@ -243,12 +254,26 @@ class FleetSettings(_Model):
     distance_unit: DistanceUnit = Field(
         default=DistanceUnit.KM, description="km or mi: the unit of every distance in the file."
     )
-    due_soon_distance: Annotated[float, Strict(), Field(ge=0, le=MAX_INTERVAL_DISTANCE)] = Field(
+    near_limit_distance: Annotated[float, Strict(), Field(ge=0, le=MAX_INTERVAL_DISTANCE)] = Field(
         default=5000, description="Warn this far before a distance limit."
     )
-    due_soon_days: Annotated[int, Strict(), Field(ge=0, le=3650)] = Field(
+    near_limit_days: Annotated[int, Strict(), Field(ge=0, le=3650)] = Field(
         default=60, description="Warn this many days before a date limit."
     )
+    # The keys' earlier names, still read so that older files load unchanged; the new name wins
+    # when a file gives both (`planner.validate.notices` tells the user of the new names).
+    due_soon_distance: Annotated[float, Strict(), Field(ge=0, le=MAX_INTERVAL_DISTANCE)] | None = (
+        Field(default=None, description="Earlier name of near_limit_distance, still read."))
+    due_soon_days: Annotated[int, Strict(), Field(ge=0, le=3650)] | None = Field(
+        default=None, description="Earlier name of near_limit_days, still read.")
+
+    @model_validator(mode="after")
+    def _earlier_names(self) -> FleetSettings:
+        for old, new in OLD_SETTING_NAMES.items():
+            value = getattr(self, old)
+            if value is not None and new not in self.model_fields_set:
+                object.__setattr__(self, new, value)
+        return self
     default_daily_distance: Annotated[float, Strict(), Field(ge=0, le=5000)] | None = Field(
         default=None, description="Distance per day assumed when a vehicle has too few readings."
     )

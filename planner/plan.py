@@ -32,7 +32,7 @@ MAX_PROJECTION_DAYS = 36525
 class Status(StrEnum):
     OVERDUE = "overdue"
     NO_RECORD = "no-record"
-    DUE_SOON = "due-soon"
+    NEAR_LIMIT = "near-limit"
     OK = "ok"
     ON_CONDITION = "on-condition"
 
@@ -355,8 +355,8 @@ def plan_vehicle(vehicle: Vehicle, fleet: Fleet, as_of: dt.date,
 
     if remaining <= 0 or time_due <= as_of:
         status = Status.OVERDUE
-    elif remaining <= fleet.fleet.due_soon_distance or days_left <= fleet.fleet.due_soon_days:
-        status = Status.DUE_SOON
+    elif remaining <= fleet.fleet.near_limit_distance or days_left <= fleet.fleet.near_limit_days:
+        status = Status.NEAR_LIMIT
     else:
         status = Status.OK
 

@@ -224,7 +224,7 @@ def assess(p: VehiclePlan, fleet: Fleet, model: RiskModel, as_of: dt.date) -> Ri
     u_later = max(u_now, u_later if u_later is not None else u_now)
     p_h = reliability.conditional_failure(u_now, u_later, model.beta, model.eta)
     p_due = None
-    if p.status in (Status.OK, Status.DUE_SOON) and u_now < 1.0:
+    if p.status in (Status.OK, Status.NEAR_LIMIT) and u_now < 1.0:
         p_due = reliability.conditional_failure(u_now, 1.0, model.beta, model.eta)
     cost = failure_cost(p, fleet)
     if cost is None:

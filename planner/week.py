@@ -8,8 +8,8 @@ cost, the risk taken away and who to call.
 Rules of this module [trade, no source unless named]:
 
 - Candidates are vehicles with a belt or a wet belt whose status is in the `include` set:
-  `due-soon` (the default) books everything due now *and* what falls due soon: overdue,
-  no-record and due-soon; `all-due` books only what is already due: overdue and no-record
+  `near-limit` (the default) books everything due now *and* what falls due soon: overdue,
+  no-record and near-limit; `all-due` books only what is already due: overdue and no-record
   (a belt with no record is due now: replace on acquisition). Chains and gears are never
   candidates: they are replaced on condition, not by the calendar.
 - Priority is the risk model's triage order (`planner.risk`): overdue and no-record first, by
@@ -50,10 +50,10 @@ from planner.schedule import (
 )
 
 INCLUDE: dict[str, tuple[Status, ...]] = {
-    "due-soon": (Status.OVERDUE, Status.NO_RECORD, Status.DUE_SOON),
+    "near-limit": (Status.OVERDUE, Status.NO_RECORD, Status.NEAR_LIMIT),
     "all-due": (Status.OVERDUE, Status.NO_RECORD),
 }
-DEFAULT_INCLUDE = "due-soon"
+DEFAULT_INCLUDE = "near-limit"
 MAX_WEEKS = 52
 NO_LABOUR_HOURS = "no labour_hours set"
 PARTS_NOT_LISTED = "(parts not listed)"
@@ -61,7 +61,7 @@ PARTS_NOT_LISTED = "(parts not listed)"
 STATUS_WORDS = {
     Status.OVERDUE: "overdue",
     Status.NO_RECORD: "no belt record",
-    Status.DUE_SOON: "due soon",
+    Status.NEAR_LIMIT: "near its limit",
     Status.OK: "ok",
     Status.ON_CONDITION: "on condition",
 }
@@ -92,7 +92,7 @@ class WeekJob:
 
     @property
     def status_words(self) -> str:
-        """Short status for a call: 'overdue by age', 'due soon by distance', 'no belt record'."""
+        """Short status for a call: 'overdue by age', 'near its limit by distance', 'no belt record'."""
         words = STATUS_WORDS[self.status]
         limit = self.plan.deciding_limit
         if limit is None or self.status is Status.NO_RECORD:
@@ -207,7 +207,7 @@ class CallEntry:
     email: str
     due_date: date | None
     status: Status
-    status_words: str  # 'overdue by age', 'due soon by distance', 'no belt record'
+    status_words: str  # 'overdue by age', 'near its limit by distance', 'no belt record'
     reason: str  # the long form: status and the deciding limit with its figures
     booked_day: date | None
     bay: int | None

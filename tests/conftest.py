@@ -22,8 +22,8 @@ schema = 1
 [fleet]
 name = "Test fleet"
 distance_unit = "km"
-due_soon_distance = 5000
-due_soon_days = 60
+near_limit_distance = 5000
+near_limit_days = 60
 
 [engines.belt]
 fuel = "petrol"

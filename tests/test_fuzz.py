@@ -233,7 +233,7 @@ def fleets(draw) -> dict[str, Any]:
     doc: dict[str, Any] = {"schema": 1}
     if draw(st.booleans()):
         doc["fleet"] = {"name": draw(TEXT), "distance_unit": draw(st.sampled_from(["km", "mi"])),
-                        "due_soon_days": draw(st.integers(0, 3650))}
+                        "near_limit_days": draw(st.integers(0, 3650))}
     if draw(st.booleans()):
         doc["risk"] = {"shape": draw(st.floats(0.5, 20)),
                        "share_failed_at_interval": draw(st.floats(0.001, 0.5)),

@@ -467,7 +467,7 @@ def test_spreadsheet_export_becomes_a_valid_fleet_in_one_command(tmp_path, capsy
     assert any(int(r["In service"][:2]) > 12 for r in rows)  # day-first dates
     assert loaded.text.startswith("# Fleet file made by `beltplan import` from ")
     statuses = {p.status.value for p in plan_fleet(loaded.fleet, AS_OF)}
-    assert {"overdue", "due-soon", "ok", "no-record", "on-condition"} <= statuses
+    assert {"overdue", "near-limit", "ok", "no-record", "on-condition"} <= statuses
 
 
 def test_spreadsheet_export_without_the_flag_is_refused_and_nothing_written(tmp_path, capsys):

@@ -41,7 +41,7 @@ def test_time_limit_decides_for_a_low_mileage_vehicle():
     assert p.time_due_date == dt.date(2027, 1, 15)
     assert p.due_date == dt.date(2027, 1, 15)
     assert p.days_remaining == 39
-    assert p.status is Status.DUE_SOON  # 39 days <= 60 days
+    assert p.status is Status.NEAR_LIMIT  # 39 days <= 60 days
     assert p.distance_remaining > 70000
 
 
@@ -87,7 +87,7 @@ def test_overdue_when_either_limit_is_reached():
     assert any("sudden engine stop" in n for n in on_the_day.notes)
 
 
-def test_due_soon_by_distance_alone():
+def test_near_limit_by_distance_alone():
     p = plan_one("""
         [[vehicles]]
         id = "E"
@@ -96,7 +96,7 @@ def test_due_soon_by_distance_alone():
         readings = [{ date = 2026-06-01, odometer = 80000 }, { date = 2026-12-07, odometer = 96000 }]
     """)
     assert 0 < p.distance_remaining <= 5000
-    assert p.status is Status.DUE_SOON
+    assert p.status is Status.NEAR_LIMIT
 
 
 def test_severe_duty_uses_the_severe_interval():
@@ -246,7 +246,7 @@ def test_no_usage_data():
 
 def test_default_daily_distance_is_used_when_readings_are_too_few():
     header_with_default = HEADER.replace(
-        "due_soon_days = 60", "due_soon_days = 60\ndefault_daily_distance = 50")
+        "near_limit_days = 60", "near_limit_days = 60\ndefault_daily_distance = 50")
     p = plan_one("""
         [[vehicles]]
         id = "N2"

@@ -67,7 +67,7 @@ def test_breakdown_uses_the_fleet_breakdown_cost():
         interference = "non-interference"
         in_service = 2022-01-01
         readings = [{ date = 2026-01-01, odometer = 70000 }, { date = 2026-12-01, odometer = 90000 }]
-    """, RISK_HEADER.replace("due_soon_days = 60", "due_soon_days = 60\nbreakdown_cost = 500"))
+    """, RISK_HEADER.replace("near_limit_days = 60", "near_limit_days = 60\nbreakdown_cost = 500"))
     a = risk.assess_fleet_plan(fleet, AS_OF)
     r = a.risks["N"]
     assert r.failure_cost == 500
@@ -213,7 +213,7 @@ def test_replacement_point_with_costs_from_the_profile():
         id = "A"
         engine = "belt"
         in_service = 2024-01-01
-    """, RISK_HEADER.replace("due_soon_days = 60", "due_soon_days = 60\nlabour_rate = 50"))
+    """, RISK_HEADER.replace("near_limit_days = 60", "near_limit_days = 60\nlabour_rate = 50"))
     model = dataclasses.replace(risk.risk_model(fleet, AS_OF), beta=4.0, eta=1.2)
     point = risk.replacement_points(fleet, model)[0]
     assert point.planned_cost == pytest.approx(200 + 3 * 50)       # parts + hours x rate

@@ -333,8 +333,8 @@ async def test_filters_and_sorts_at_a_few_thousand_vehicles_give_the_right_rows(
         assert len(list(app.screen.query("*"))) < 40
 
         cases = [
-            (View(statuses=frozenset({"overdue", "due-soon"})),
-             [r["id"] for r in recs if r["status"] in ("overdue", "due-soon")]),
+            (View(statuses=frozenset({"overdue", "near-limit"})),
+             [r["id"] for r in recs if r["status"] in ("overdue", "near-limit")]),
             (View(statuses=frozenset({"overdue"}), consequences=frozenset({"engine-damage"})),
              [r["id"] for r in recs if r["status"] == "overdue"
               and r["consequence"] == "engine-damage"]),

@@ -59,7 +59,7 @@ def test_records_are_the_clis(session):
     assert session.records() == export.assessment_records(
         assess_fleet_plan(session.fleet, AS_OF))
     assert summary_text(session.records()) == (
-        "16 vehicles: 4 overdue, 1 no-record, 4 due-soon, 5 ok, 2 on-condition")
+        "16 vehicles: 4 overdue, 1 no-record, 4 near-limit, 5 ok, 2 on-condition")
 
 
 def test_save_refuses_when_the_file_changed(session):
@@ -111,7 +111,7 @@ RECORDS = [
      "days_remaining": 40},
     {"id": "B", "label": "Car", "status": "overdue", "consequence": "engine-damage",
      "days_remaining": None},
-    {"id": "C", "label": "van south", "status": "due-soon", "consequence": "unverified",
+    {"id": "C", "label": "van south", "status": "near-limit", "consequence": "unverified",
      "days_remaining": -3},
 ]
 
@@ -119,7 +119,7 @@ RECORDS = [
 def test_filters_and_search():
     ids = lambda v: [r["id"] for r in arrange(RECORDS, v)]  # noqa: E731
     assert ids(View()) == ["A", "B", "C"]  # triage order is the records' own
-    assert ids(View(statuses=frozenset({"ok", "due-soon"}))) == ["A", "C"]
+    assert ids(View(statuses=frozenset({"ok", "near-limit"}))) == ["A", "C"]
     assert ids(View(consequences=frozenset({"engine-damage"}))) == ["B"]
     assert ids(View(query="VAN")) == ["A", "C"]
     assert ids(View(query="van south")) == ["C"]

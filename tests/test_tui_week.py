@@ -141,7 +141,7 @@ async def test_holiday_long_job_and_a_job_not_placed_with_its_reason():
         [u] = week.unplaced
         assert f"Not placed ({len(week.unplaced)}), each with its reason" in lines
         k = next(k for k, x in enumerate(lines) if x.strip().startswith("not placed"))
-        assert u.job.vehicle_id in lines[k] and "Hatchback, no ho" in lines[k]
+        assert u.job.vehicle_id in lines[k] and "Hatchback, no h" in lines[k]
         assert lines[k + 1].strip().startswith(f"{u.reason}: set labour_hours")
         await highlight(pilot, u.job.vehicle_id)
         assert u.detail in text_of(app.screen.query_one("#w-info"))

@@ -42,7 +42,7 @@ in_service = 2018-01-01
 readings = [{ date = 2026-01-01, odometer = 80000 }, { date = 2026-11-20, odometer = 90000 }]
 """
 # Due soon by age: 60 months from 2022-01-15 = 2027-01-15, 42 days after FRI (<= 60).
-DUE_SOON = """
+NEAR_LIMIT = """
 in_service = 2022-01-15
 readings = [{ date = 2025-12-10, odometer = 20000 }, { date = 2026-12-01, odometer = 25000 }]
 """
@@ -72,8 +72,8 @@ def vehicle(vid: str, hours: float | None = 3.0, cost: float = 3000.0, state: st
 
 
 def fleet_of(*blocks: str, ws: str | None = None, rate: float = 50.0, header: str = HEADER):
-    head = header.replace('due_soon_days = 60\n',
-                          f'due_soon_days = 60\nlabour_rate = {rate}\ncurrency = "EUR"\n')
+    head = header.replace('near_limit_days = 60\n',
+                          f'near_limit_days = 60\nlabour_rate = {rate}\ncurrency = "EUR"\n')
     return make_fleet((ws if ws is not None else workshop()) + "\n" + "".join(blocks), head)
 
 
@@ -173,7 +173,7 @@ def test_long_job_over_a_holiday():
 
 
 def test_candidates_by_include():
-    # Overdue O, no-record N, due-soon D, ok K, chain C.
+    # Overdue O, no-record N, near-limit D, ok K, chain C.
     chain = HEADER + """
 [engines.chain]
 fuel = "petrol"
@@ -185,14 +185,14 @@ labour_hours = 6.0
         vehicle("O", 2, 1000),
         vehicle("N", 2, 1000, state="in_service = 2024-01-01\nbelt_history = \"unknown\"\n"
                 "readings = [{ date = 2026-11-01, odometer = 90000 }]\n"),
-        vehicle("D", 2, 90000, state=DUE_SOON),
+        vehicle("D", 2, 90000, state=NEAR_LIMIT),
         vehicle("K", 2, 1000, state=OK),
         vehicle("C", 2, 1000, state=OVERDUE, engine="chain"),
         header=chain,
     )
     week = plan_week(fleet, FRI)
     statuses = {j.vehicle_id: j.status for j in week.jobs}
-    assert statuses == {"O": Status.OVERDUE, "N": Status.NO_RECORD, "D": Status.DUE_SOON}
+    assert statuses == {"O": Status.OVERDUE, "N": Status.NO_RECORD, "D": Status.NEAR_LIMIT}
     # Triage: due now (overdue, no-record) before due soon, even with a 90,000 failure cost.
     assert [j.vehicle_id for j in week.jobs][-1] == "D"
     due_now = plan_week(fleet, FRI, include="all-due")
@@ -319,7 +319,7 @@ def test_call_list():
 
     gone = 'unavailable = [{ start = 2026-12-01, end = 2026-12-31, reason = "abroad" }]\n'
     fleet = fleet_of(
-        vehicle("B", 5, 4000, state=DUE_SOON, extra=contact("Bea", "0200")),
+        vehicle("B", 5, 4000, state=NEAR_LIMIT, extra=contact("Bea", "0200")),
         vehicle("A", 6, 5000, extra=contact("Al", "0100", "al@example.invalid")),
         vehicle("C", 3, 3000, extra=contact("Cy", email="cy@example.invalid") + gone),
         vehicle("D", 2, 2000),
@@ -337,7 +337,7 @@ def test_call_list():
     calls = {c.vehicle_id: c for c in week.call_list}
     assert calls["A"].due_date == date(2023, 1, 1) and calls["A"].status_words == "overdue by age"
     assert calls["B"].due_date == date(2027, 1, 15)
-    assert calls["B"].status_words == "due soon by age"
+    assert calls["B"].status_words == "near its limit by age"
     assert calls["A"].reason.startswith("overdue: age limit decides: 60 months from 2018-01-01")
     assert calls["C"].not_booked == "vehicle unavailable in the window: away 2026-12-01 to " \
         "2026-12-31 (abroad)"
@@ -409,7 +409,7 @@ def small_fleets(draw):
     blocks = []
     for k in range(n):
         hours = draw(st.one_of(st.none(), st.sampled_from([1.5, 2, 3, 4.5, 7.5, 8, 12, 20])))
-        state = draw(st.sampled_from([OVERDUE, DUE_SOON, OK]))
+        state = draw(st.sampled_from([OVERDUE, NEAR_LIMIT, OK]))
         extra = ""
         if draw(st.booleans()):
             extra += f'contact = {{ name = "n{k}", phone = "{k}" }}\n'
@@ -424,7 +424,7 @@ def small_fleets(draw):
     ws = workshop(bays=draw(st.integers(1, 3)), hours=draw(st.sampled_from([6.0, 8.0])),
                   lead=draw(st.integers(0, 6)), kits=draw(st.booleans()), closed=closed)
     return fleet_of(*blocks, ws=ws), draw(st.integers(1, 2)), draw(st.sampled_from(
-        ["due-soon", "all-due"]))
+        ["near-limit", "all-due"]))
 
 
 @settings(max_examples=60, deadline=None, suppress_health_check=[HealthCheck.too_slow])

@@ -240,7 +240,7 @@ def test_csv_golden(week):
 def test_json(week):
     doc = json.loads(to_json_text(week))  # standard library reader
     assert (doc["as_of"], doc["start"], doc["end"]) == ("2026-12-04", "2026-12-07", "2026-12-13")
-    assert doc["included_statuses"] == ["overdue", "no-record", "due-soon"]
+    assert doc["included_statuses"] == ["overdue", "no-record", "near-limit"]
     assert doc["totals"]["labour_hours"] == 22.5 and doc["totals"]["total_cost"] == 2400.0
     assert doc["totals"]["expected_loss_removed"] == round(week.expected_loss_removed, 2)
     wed = next(d for d in doc["days"] if d["day"] == "2026-12-09")

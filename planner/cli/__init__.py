@@ -23,7 +23,7 @@ NO_CYCLES = ("check", "list", "risk", "week", "schema")  # read, plan, print: no
 DESCRIPTION = """\
 Timing-belt service and failure-risk planner.
 
-Reads a TOML fleet file and tells which cam drives are overdue or due soon, by distance or age,
+Reads a TOML fleet file and tells which cam drives are overdue or near their limit, by distance or age,
 whichever comes first, projected from odometer readings, and what a failure would cost.
 
 The maker's schedule and service information come first: this is a planning aid. Cam-drive work

@@ -21,7 +21,7 @@ from planner.units import distance_factor
 
 FORMATS = ("table", "csv", "json", "markdown")
 STATUS_STYLE = {
-    "overdue": "bold red", "no-record": "bold magenta", "due-soon": "yellow",
+    "overdue": "bold red", "no-record": "bold magenta", "near-limit": "yellow",
     "ok": "green", "on-condition": "cyan",
 }
 CONSEQUENCE_STYLE = {"engine-damage": "red", "unverified": "magenta", "breakdown": "yellow"}
@@ -29,12 +29,12 @@ CONSEQUENCE_STYLE = {"engine-damage": "red", "unverified": "magenta", "breakdown
 
 def register(sub: argparse._SubParsersAction) -> None:
     p = sub.add_parser(
-        "list", help="the plan: which cam drives are overdue or due soon, and why",
+        "list", help="the plan: which cam drives are overdue or near their limit, and why",
         description="Plan every vehicle on the planning date: status, what a failure would "
         "do, distance and days left, the due date and which limit (distance or age) decides.",
         epilog="examples:\n"
         "  beltplan list fleet_examples/courier_fleet.toml\n"
-        "  beltplan list fleet.toml --as-of 2027-01-31 --status overdue,due-soon\n"
+        "  beltplan list fleet.toml --as-of 2027-01-31 --status overdue,near-limit\n"
         "  beltplan list fleet.toml --status overdue --format csv -o overdue.csv\n\n"
         f"statuses: {', '.join(s.value for s in Status)}",
         formatter_class=argparse.RawDescriptionHelpFormatter,
@@ -42,7 +42,7 @@ def register(sub: argparse._SubParsersAction) -> None:
     p.add_argument("file", help="fleet file (TOML)")
     add_as_of(p)
     p.add_argument("--status", metavar="LIST",
-                   help="only these statuses, comma separated (e.g. overdue,due-soon)")
+                   help="only these statuses, comma separated (e.g. overdue,near-limit)")
     p.add_argument("--format", choices=FORMATS, default="table", help="output format")
     p.add_argument("--sort", choices=ORDERS, default="triage",
                    help="triage: overdue and no-record first, then by expected loss (default); "

@@ -19,9 +19,9 @@ examples:
   beltplan week fleet.toml --format csv --list parts -o parts.csv
 
 --include:
-  due-soon   book what is due now and what falls due soon: overdue, no-record and
-             due-soon belts and wet belts (default)
-  all-due    book only what is already due: overdue and no-record
+  near-limit  book what is due now and what is near its limit: overdue, no-record and
+              near-limit belts and wet belts (default; the older word due-soon is read too)
+  all-due     book only what is already due: overdue and no-record
 Chains and gear drives are replaced on condition and never booked by this command.
 
 --list (CSV only): jobs (one row per job and day, then the jobs not placed; default),
@@ -45,6 +45,11 @@ def _weeks(text: str) -> int:
     return n
 
 
+def _include(text: str) -> str:
+    """The include word; `due-soon`, its earlier name, still means `near-limit`."""
+    return "near-limit" if text == "due-soon" else text
+
+
 def register(sub: argparse._SubParsersAction) -> None:
     p = sub.add_parser(
         "week", help="the workshop's week: belt jobs by day and bay, parts, call list, calendar",
@@ -62,8 +67,8 @@ def register(sub: argparse._SubParsersAction) -> None:
                    "after the planning date)")
     p.add_argument("--weeks", type=_weeks, default=1, metavar="N",
                    help=f"how many weeks to plan, 1 to {MAX_WEEKS} (default 1)")
-    p.add_argument("--include", choices=tuple(INCLUDE), default=DEFAULT_INCLUDE,
-                   help="which vehicles to book: due-soon (overdue, no-record and due-soon; "
+    p.add_argument("--include", type=_include, choices=tuple(INCLUDE), default=DEFAULT_INCLUDE,
+                   help="which vehicles to book: near-limit (overdue, no-record and near-limit; "
                    "default) or all-due (overdue and no-record only)")
     p.add_argument("--format", choices=week_export.FORMATS, default="table",
                    help="output format (default table)")

@@ -16,12 +16,12 @@ from textual.theme import Theme
 STYLES = Path(__file__).resolve().parent
 
 STATUS_SYMBOL = {
-    "overdue": "✗", "no-record": "?", "due-soon": "!", "ok": "✓", "on-condition": "~",
+    "overdue": "✗", "no-record": "?", "near-limit": "!", "ok": "✓", "on-condition": "~",
 }
 STATUS_STYLE = {
     "overdue": Style(color="#ff6a4d", bold=True),
     "no-record": Style(color="#d58cf0", bold=True),
-    "due-soon": Style(color="#f0c040"),
+    "near-limit": Style(color="#f0c040"),
     "ok": Style(color="#8cc46a"),
     "on-condition": Style(color="#8fb3d9"),
 }
@@ -34,7 +34,7 @@ CONSEQUENCE_STYLE = {
 WHAT_IT_MEANS = {
     "overdue": "past a limit: book it now",
     "no-record": "no belt record: replace on acquisition",
-    "due-soon": "within the warning distance or days",
+    "near-limit": "within the warning distance or days",
     "ok": "not yet due",
     "on-condition": "chain or gear: no fixed interval",
     "engine-damage": "interference engine: valves meet pistons",

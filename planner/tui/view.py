@@ -120,7 +120,7 @@ class Listing:
 
 
 def describe(view: View, headings: dict[str, str]) -> str:
-    """`overdue, due-soon · engine-damage · by Due ↑`, or `all vehicles · triage order`."""
+    """`overdue, near-limit · engine-damage · by Due ↑`, or `all vehicles · triage order`."""
     def words(chosen: Iterable[str], every: Sequence[str]) -> str:
         return ", ".join(w for w in every if w in chosen)
 

@@ -20,7 +20,7 @@ from planner.week import INCLUDE, MAX_WEEKS, WeekPlan, default_start
 from planner.week_export import day_text, hours_text
 
 F = FormField
-INCLUDE_WORDS = {"due-soon": "due-soon: overdue, no-record and due soon",
+INCLUDE_WORDS = {"near-limit": "near-limit: overdue, no-record and near the limit",
                  "all-due": "all-due: overdue and no-record only"}
 
 

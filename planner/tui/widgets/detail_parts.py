@@ -66,7 +66,7 @@ def what_to_do(plan: VehiclePlan) -> Text | None:
     elif plan.status is Status.NO_RECORD:
         lines = ["No record of the belt now running: common practice is to replace it on "
                  "acquisition rather than trust the odometer."]
-    elif plan.status is Status.DUE_SOON and plan.due_date is not None:
+    elif plan.status is Status.NEAR_LIMIT and plan.due_date is not None:
         lines = [f"Book the job before {plan.due_date} ({plan.days_remaining} days)."]
     else:
         return None

@@ -34,7 +34,7 @@ SHADE_STYLES = (ACCENT, Style(color="#c98a2e"))  # and in two ambers, for colour
 FREE = "·"
 DAY_BAND = Style(bgcolor="#2a2e33")  # the theme's panel colour: a band per day
 WIDE = 70  # from this width consequences are written out, below it only their symbol
-STATUS_WIDTH = len("✗ no-record")
+STATUS_WIDTH = len("✗ near-limit")  # the longest status a booked job can have
 CONSEQUENCE_WIDTH = len("◆ engine-damage")
 
 
