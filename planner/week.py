@@ -92,7 +92,7 @@ class WeekJob:
 
     @property
     def status_words(self) -> str:
-        """Short status for a call: 'overdue by age', 'near its limit by distance', 'no belt record'."""
+        """Short status for a call: 'overdue by age', 'near its limit by distance'."""
         words = STATUS_WORDS[self.status]
         limit = self.plan.deciding_limit
         if limit is None or self.status is Status.NO_RECORD:

@@ -23,8 +23,8 @@ NO_CYCLES = ("check", "list", "risk", "week", "schema")  # read, plan, print: no
 DESCRIPTION = """\
 Timing-belt service and failure-risk planner.
 
-Reads a TOML fleet file and tells which cam drives are overdue or near their limit, by distance or age,
-whichever comes first, projected from odometer readings, and what a failure would cost.
+Reads a TOML fleet file and tells which cam drives are overdue or near their limit, by distance
+or age, whichever comes first, projected from odometer readings, and what a failure would cost.
 
 The maker's schedule and service information come first: this is a planning aid. Cam-drive work
 belongs to a qualified technician; a belt past its interval can stop the engine without warning.
