@@ -10,17 +10,27 @@ import csv
 import datetime as dt
 import io
 import json
+import textwrap
 from collections.abc import Iterable, Sequence
 from typing import Any
 
+from planner.formats import money, percent
 from planner.plan import VehiclePlan
-from planner.risk import FleetAssessment, Risk
+from planner.risk import REQUIRED_STATUSES, FleetAssessment, Risk, action_words
 
+# The one caution text: every output a person reads carries it whole (the README quotes it).
 CAUTION = (
-    "The maker's schedule and service information come first: this plan is a planning aid, not "
-    "a diagnosis. Cam-drive work belongs to a qualified technician following the maker's "
-    "procedure and local rules. A belt past its interval can stop the engine without warning."
+    "The maker's schedule and service information come first: beltplan is a planning aid, not "
+    "a diagnosis, and never a reason to run past a maker's interval. Cam-drive work belongs to "
+    "a qualified technician following the maker's procedure and local rules. A belt past its "
+    "interval can stop the engine without warning — at speed that also takes away power "
+    "steering and brake assist."
 )
+
+
+def caution_block(width: int = 79, lead: str = "Caution: ") -> str:
+    """The caution wrapped for help texts and plain-text files."""
+    return textwrap.fill(lead + CAUTION, width)
 
 # The JSON field names, in order. Scripts rely on them: add, never rename.
 FIELDS: tuple[str, ...] = (
@@ -29,6 +39,7 @@ FIELDS: tuple[str, ...] = (
     "est_odometer", "daily_distance", "distance_remaining", "time_due_date",
     "distance_due_date", "due_date", "days_remaining", "deciding_limit", "notes",
     "life_used", "p_fail_horizon", "p_fail_before_due", "expected_loss", "risk_basis",
+    "action", "risk_extrapolated",
 )
 
 
@@ -76,14 +87,16 @@ def plan_record(p: VehiclePlan, factor: float = 1.0, risk: Risk | None = None) -
         "life_used": None if p.life_used is None else round(p.life_used, 3),
         "p_fail_horizon": _prob(risk.p_fail_horizon) if risk else None,
         "p_fail_before_due": _prob(risk.p_fail_before_due) if risk else None,
-        "expected_loss": None if risk is None or risk.expected_loss is None
-        else round(risk.expected_loss, 2),
+        "expected_loss": None if risk is None else risk.expected_loss,
         "risk_basis": risk.basis if risk else None,
+        "action": action_words(p),
+        "risk_extrapolated": bool(risk and risk.extrapolated),
     }
 
 
 def _prob(x: float | None) -> float | None:
-    return None if x is None else round(x, 6)
+    """Probabilities keep full precision: a tiny one is data, not zero."""
+    return x
 
 
 def assessment_records(a: FleetAssessment, factor: float = 1.0) -> list[dict[str, Any]]:
@@ -102,7 +115,7 @@ def table_columns(unit: str, horizon_days: int = 90) -> list[tuple[str, str]]:
     """(field, heading) of the human-readable table, shared by the terminal and Markdown."""
     return [
         ("id", "Vehicle"), ("label", "Label"), ("drive", "Drive"),
-        ("consequence", "If it fails"), ("status", "Status"),
+        ("consequence", "If it fails"), ("status", "Status"), ("action", "Action"),
         ("distance_remaining", f"Left ({unit})"), ("due_date", "Due"),
         ("days_remaining", "Days"), ("deciding_limit", "Limit"),
         ("life_used", "Life used"), ("p_fail_horizon", f"Risk {horizon_days} d"),
@@ -114,23 +127,40 @@ def table_columns(unit: str, horizon_days: int = 90) -> list[tuple[str, str]]:
 PERCENT_FIELDS = {"life_used", "p_fail_horizon", "p_fail_before_due"}
 
 
+EXTRAPOLATED = "extrap."  # beside a probability past the maker's interval
+REQUIRED = "required"  # in place of an expected loss for a job that is due
+
+
 def display(value: Any, field: str = "") -> str:
     """A record value as table text: thousands separators, a dash for unknown."""
     if value is None:
         return "–"
     if field in PERCENT_FIELDS:
-        if field != "life_used" and 0 < value < 0.001:
-            return "<0.1 %"
-        return f"{value * 100:.0f} %" if field == "life_used" else f"{value * 100:.1f} %"
+        return percent(value, 0 if field == "life_used" else 1)
     if isinstance(value, bool):
         return "yes" if value else "no"
+    if field == "expected_loss":
+        return money(value)
     if isinstance(value, int):
         return f"{value:,}"
     if isinstance(value, float):
-        return f"{value:,.0f}" if field == "expected_loss" else f"{value:,.1f}"
+        return f"{value:,.1f}"
     if isinstance(value, (list, tuple)):
         return "; ".join(str(v) for v in value)
     return str(value)
+
+
+def cell(record: dict[str, Any], field: str) -> str:
+    """A record's value as people read it. Past the maker's interval (overdue, or no belt
+    record) a probability is marked as an extrapolation beyond the maker's data, and no
+    expected loss is set against a job that is required."""
+    value = record.get(field)
+    if record.get("risk_extrapolated"):
+        if field in ("p_fail_horizon", "p_fail_before_due") and value is not None:
+            return f"{display(value, field)} {EXTRAPOLATED}"
+        if field == "expected_loss" and record.get("status") in REQUIRED_STATUSES:
+            return REQUIRED
+    return display(value, field)
 
 
 def to_json(records: Sequence[dict[str, Any]], as_of: dt.date, unit: str,
@@ -175,8 +205,8 @@ def to_csv(records: Iterable[dict[str, Any]], fields: Sequence[str]) -> str:
     return out.getvalue()
 
 
-def _md_cell(value: Any, field: str) -> str:
-    text = display(value, field).replace("\\", "\\\\").replace("|", "\\|")
+def _md_cell(record: dict[str, Any], field: str) -> str:
+    text = cell(record, field).replace("\\", "\\\\").replace("|", "\\|")
     return " ".join(text.split())
 
 
@@ -191,7 +221,7 @@ def to_markdown(records: Sequence[dict[str, Any]], columns: Sequence[tuple[str, 
     lines.append("| " + " | ".join(h for _, h in columns) + " |")
     lines.append("|" + "|".join("---" for _ in columns) + "|")
     for rec in records:
-        lines.append("| " + " | ".join(_md_cell(rec.get(f), f) for f, _ in columns) + " |")
+        lines.append("| " + " | ".join(_md_cell(rec, f) for f, _ in columns) + " |")
     lines.append("")
     for line in footer:
         lines.append(line)

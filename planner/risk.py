@@ -15,6 +15,7 @@ from dataclasses import dataclass
 
 from planner import reliability
 from planner.fleet import BeltHistory, Fleet, JobReason, Vehicle
+from planner.formats import percent
 from planner.plan import (
     Consequence,
     Install,
@@ -33,6 +34,31 @@ from planner.plan import (
 MIN_FAILURES_FOR_FIT = 3
 ASSUMED = "assumed"
 FLEET_FIT = "fleet fit"
+
+# Jobs that are due now: past a limit, or a belt of unknown age (replaced on acquisition).
+# They are required, never weighed against cost: no risk figure is set against them.
+REQUIRED_STATUSES = (Status.OVERDUE, Status.NO_RECORD)
+EXTRAPOLATION_NOTE = ("past the maker's interval the risk model extrapolates beyond the maker's "
+                      "data: its figures are no reason to wait; replace now")
+FIT_INTERVAL_NOTE = ("This fleet's fit implies a longer belt life than the maker's interval: "
+                     "statuses still follow the maker's interval, and the fit never lengthens "
+                     "it.")
+
+
+def is_required(status: Status) -> bool:
+    """A job that is due now (overdue or no belt record): required, not a cost decision."""
+    return status in REQUIRED_STATUSES
+
+
+def action_words(p: VehiclePlan) -> str | None:
+    """What to do, in two or three words, led by the action; None when nothing is due."""
+    if p.status is Status.OVERDUE:
+        return "replace now"
+    if p.status is Status.NO_RECORD:
+        return "replace now"
+    if p.status is Status.NEAR_LIMIT:
+        return "book soon"
+    return None
 
 
 @dataclass(frozen=True)
@@ -57,14 +83,29 @@ class RiskModel:
     horizon_days: int
     fit: FitReport
 
+    @property
+    def share_failed_at_interval_now(self) -> float:
+        """The share of belts this law has failed by the maker's interval."""
+        return reliability.weibull_cdf(1.0, self.beta, self.eta)
+
+    def interval_note(self) -> str | None:
+        """For a fleet fit in force by which most belts would outlast the maker's interval
+        (median life past it): the fit never lengthens the interval."""
+        if self.basis == FLEET_FIT and self.share_failed_at_interval_now < 0.5:
+            return FIT_INTERVAL_NOTE
+        return None
+
     def describe(self) -> str:
         """One line that goes with every risk figure."""
-        share = reliability.weibull_cdf(1.0, self.beta, self.eta)
         source = ("fitted to this fleet's job history"
                   if self.basis == FLEET_FIT else "assumed in the [risk] table, not measured")
-        return (f"Risk model: Weibull shape {self.beta:.2f}, scale {self.eta:.3f} of the interval "
-                f"({share:.1%} failed by the maker's interval), {source}; horizon "
-                f"{self.horizon_days} days. Probabilities are estimates for planning only.")
+        line = (f"Risk model: Weibull shape {self.beta:.2f}, with "
+                f"{percent(self.share_failed_at_interval_now)} of belts failed by the maker's "
+                f"interval, {source}; horizon {self.horizon_days} days. Probabilities are "
+                "planning estimates only; past the maker's interval they extrapolate beyond "
+                "the maker's data.")
+        note = self.interval_note()
+        return f"{line} {note}" if note else line
 
     def as_dict(self) -> dict:
         fit = self.fit.fit
@@ -76,6 +117,7 @@ class RiskModel:
                 reliability.weibull_cdf(1.0, self.beta, self.eta), 6),
             "horizon_days": self.horizon_days,
             "life_unit": "share of the maker's interval (distance or age, whichever is larger)",
+            "interval_note": self.interval_note(),
             "fleet_fit": {
                 "failures": self.fit.failures,
                 "suspensions": self.fit.suspensions,
@@ -98,6 +140,7 @@ class Risk:
     expected_loss: float | None
     basis: str | None
     notes: tuple[str, ...] = ()
+    extrapolated: bool = False  # figures reach past the maker's interval (or its record)
 
 
 # -- the fleet's own history -------------------------------------------------------------------
@@ -226,11 +269,16 @@ def assess(p: VehiclePlan, fleet: Fleet, model: RiskModel, as_of: dt.date) -> Ri
     p_due = None
     if p.status in (Status.OK, Status.NEAR_LIMIT) and u_now < 1.0:
         p_due = reliability.conditional_failure(u_now, 1.0, model.beta, model.eta)
+    extrapolated = is_required(p.status) or u_later > 1.0
+    if extrapolated:
+        notes.append(EXTRAPOLATION_NOTE if is_required(p.status) else
+                     "within the horizon the belt passes the maker's interval: the risk model "
+                     "extrapolates beyond the maker's data; book the job before the due date")
     cost = failure_cost(p, fleet)
     if cost is None:
         notes.append("no failure_cost for this engine: the expected loss is unknown; set it")
     loss = None if cost is None else p_h * cost
-    return Risk(u_now, p_h, p_due, cost, loss, model.basis, tuple(notes))
+    return Risk(u_now, p_h, p_due, cost, loss, model.basis, tuple(notes), extrapolated)
 
 
 def assess_fleet(plans: Sequence[VehiclePlan], fleet: Fleet, model: RiskModel,
@@ -288,12 +336,13 @@ def replacement_point(profile_id: str, spec: Spec, fleet: Fleet,
     best = reliability.optimal_replacement(model.beta, model.eta, cp, cf, upper=1.0)
     if best is None:
         return ReplacementPoint(profile_id, cp, cf, None, False,
-                                "no finite optimum (shape <= 1): replace at the maker's interval")
+                                "no cost optimum (shape <= 1): replace at the maker's interval")
     if best.at_upper_bound:
         return ReplacementPoint(profile_id, cp, cf, 1.0, True,
-                                "optimum at or past the maker's interval: capped there")
+                                "no earlier point costs less: replace at the maker's interval, "
+                                "never later")
     return ReplacementPoint(profile_id, cp, cf, best.u_star, False,
-                            "earlier than the maker's interval is cheaper per unit of life")
+                            "replacing before the maker's interval costs less per unit of life")
 
 
 def replacement_points(fleet: Fleet, model: RiskModel) -> list[ReplacementPoint]:

@@ -12,6 +12,9 @@ Rules of this module [trade, no source unless named]:
   no-record and near-limit; `all-due` books only what is already due: overdue and no-record
   (a belt with no record is due now: replace on acquisition). Chains and gears are never
   candidates: they are replaced on condition, not by the calendar.
+- Jobs that are due now (overdue, or no belt record) are **required**: the totals give their
+  count and cost apart and never set a risk figure against them. Only the near-limit jobs, which
+  could in principle wait until their due date, carry "expected loss removed".
 - Priority is the risk model's triage order (`planner.risk`): overdue and no-record first, by
   expected loss.
 - Each job takes the vehicle's `labour_hours` (vehicle over engine profile). A candidate without
@@ -37,7 +40,14 @@ from datetime import date, timedelta
 from planner.errors import PlannerError
 from planner.fleet import Contact, Fleet, Workshop
 from planner.plan import Consequence, IntervalBasis, Limit, Status, VehiclePlan
-from planner.risk import FleetAssessment, Risk, RiskModel, assess_fleet_plan
+from planner.risk import (
+    FleetAssessment,
+    Risk,
+    RiskModel,
+    action_words,
+    assess_fleet_plan,
+    is_required,
+)
 from planner.schedule import (
     PARTS_LATE,
     UNAVAILABLE,
@@ -89,6 +99,16 @@ class WeekJob:
     unavailable: tuple[tuple[date, date, str], ...]  # (first, last, why)
     plan: VehiclePlan
     risk: Risk | None
+
+    @property
+    def required(self) -> bool:
+        """Due now (overdue or no belt record): required, not a cost decision."""
+        return is_required(self.status)
+
+    @property
+    def action(self) -> str:
+        """What to do, led by the action: 'replace now' or 'book soon'."""
+        return action_words(self.plan) or "book soon"
 
     @property
     def status_words(self) -> str:
@@ -213,6 +233,7 @@ class CallEntry:
     bay: int | None
     start_hour: float | None
     not_booked: str  # why not, when not booked
+    action: str = ""  # 'replace now' (required) or 'book soon'
 
     @property
     def booked(self) -> bool:
@@ -245,11 +266,16 @@ class WeekPlan:
     labour_cost: float
     parts_cost: float
     parts_cost_unknown: tuple[str, ...]  # booked jobs without a parts_cost
-    expected_loss_removed: float
-    loss_unknown: tuple[str, ...]  # booked jobs whose expected loss is unknown
+    expected_loss_removed: float  # near-limit jobs only: required jobs carry no risk figure
+    loss_unknown: tuple[str, ...]  # booked near-limit jobs whose expected loss is unknown
     risk_model: RiskModel
     risk_assumptions: str
     notes: tuple[str, ...]
+    required_jobs: tuple[str, ...]  # booked jobs due now (overdue, no record), booking order
+    required_hours: float
+    required_cost: float  # labour and parts of the required jobs
+    near_limit_jobs: tuple[str, ...]  # the other booked jobs
+    near_limit_cost: float
     fleet: Fleet = field(repr=False, compare=False)  # kept so a move can rebuild the plan
 
     @property
@@ -455,7 +481,9 @@ def _assemble(ctx: _Context, schedule: SchedulePlan) -> WeekPlan:
     hours = sum(sum(b.hours_by_day) for b in bookings)
     rate = fleet.fleet.labour_rate
     no_cost = tuple(b.job.vehicle_id for b in bookings if b.job.parts_cost is None)
-    loss_unknown = tuple(b.job.vehicle_id for b in bookings if b.job.expected_loss is None)
+    required = [b for b in bookings if b.job.required]
+    near = [b for b in bookings if not b.job.required]
+    loss_unknown = tuple(b.job.vehicle_id for b in near if b.job.expected_loss is None)
     return WeekPlan(
         fleet_name=fleet.fleet.name,
         as_of=ctx.as_of,
@@ -479,13 +507,23 @@ def _assemble(ctx: _Context, schedule: SchedulePlan) -> WeekPlan:
         labour_cost=hours * rate,
         parts_cost=sum(b.job.parts_cost or 0.0 for b in bookings),
         parts_cost_unknown=no_cost,
-        expected_loss_removed=sum(b.job.expected_loss or 0.0 for b in bookings),
+        expected_loss_removed=sum(b.job.expected_loss or 0.0 for b in near),
         loss_unknown=loss_unknown,
         risk_model=ctx.model,
         risk_assumptions=ctx.model.describe(),
         notes=_notes(ctx, bookings, no_cost, loss_unknown),
+        required_jobs=tuple(b.job.vehicle_id for b in required),
+        required_hours=sum(sum(b.hours_by_day) for b in required),
+        required_cost=sum(_cost(b, rate) for b in required),
+        near_limit_jobs=tuple(b.job.vehicle_id for b in near),
+        near_limit_cost=sum(_cost(b, rate) for b in near),
         fleet=fleet,
     )
+
+
+def _cost(b: Booking, rate: float) -> float:
+    """A booked job's labour (its hours x the rate) and parts."""
+    return sum(b.hours_by_day) * rate + (b.job.parts_cost or 0.0)
 
 
 def _days(ctx: _Context, schedule: SchedulePlan,
@@ -567,7 +605,7 @@ def _call_list(bookings: Sequence[Booking],
 def _call(job: WeekJob, c: Contact, day: date | None, bay: int | None, start: float | None,
           why: str) -> CallEntry:
     return CallEntry(job.vehicle_id, job.label, c.name, c.phone, c.email, job.due_date,
-                     job.status, job.status_words, job.reason, day, bay, start, why)
+                     job.status, job.status_words, job.reason, day, bay, start, why, job.action)
 
 
 def _notes(ctx: _Context, bookings: Sequence[Booking], no_cost: Sequence[str],
@@ -591,5 +629,5 @@ def _notes(ctx: _Context, bookings: Sequence[Booking], no_cost: Sequence[str],
         notes.append("no labour_rate in [fleet]: labour is costed at 0")
     if loss_unknown:
         notes.append(f"expected loss unknown for {', '.join(loss_unknown)} (no failure_cost): "
-                     "the risk removed is understated")
+                     "the risk removed by the near-limit jobs is understated")
     return tuple(notes)

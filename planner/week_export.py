@@ -21,6 +21,8 @@ from typing import Any
 
 from planner import __version__
 from planner.export import CAUTION, to_csv
+from planner.formats import money as _money
+from planner.plan import Status
 from planner.week import (
     INCLUDE,
     Booking,
@@ -54,8 +56,13 @@ def hours_text(h: float) -> str:
     return f"{round(h, 2):g} h"
 
 
-def money(x: float, currency: str) -> str:
-    return f"{x:,.2f}" + (f" {currency}" if currency else "")
+def money(x: float, currency: str, estimate: bool = False) -> str:
+    """`1,234.50 EUR` (`formats.money` to the cent; an `estimate` never reads as zero)."""
+    return _money(x, currency, decimals=2, estimate=estimate)
+
+
+def _jobs_text(n: int) -> str:
+    return f"{n} job{'s' if n != 1 else ''}"
 
 
 def day_text(d: dt.date) -> str:
@@ -106,17 +113,37 @@ def _preface(week: WeekPlan) -> list[str]:
     ]
 
 
+def required_line(week: WeekPlan) -> str:
+    """The jobs due now, with their cost and no risk figure: they are not optional."""
+    cur = week.currency
+    if not week.required_jobs:
+        return "Required now (overdue or no belt record): none booked."
+    return (f"Required now (overdue or no belt record; due, not optional): "
+            f"{_jobs_text(len(week.required_jobs))}, {hours_text(week.required_hours)}, "
+            f"{money(week.required_cost, cur)}. Replace these whatever the cost.")
+
+
+def near_limit_line(week: WeekPlan) -> str:
+    """The near-limit jobs, their cost, and the expected loss doing them now removes."""
+    cur = week.currency
+    if not week.near_limit_jobs:
+        return "Near the limit: none booked."
+    return (f"Near the limit: {_jobs_text(len(week.near_limit_jobs))}, "
+            f"{money(week.near_limit_cost, cur)}; expected loss they remove (failure within "
+            f"{week.risk_model.horizon_days} days x failure cost): "
+            f"{money(week.expected_loss_removed, cur, estimate=True)}; due by their dates "
+            "in any case.")
+
+
 def _totals(week: WeekPlan) -> list[str]:
     cur = week.currency
-    lines = [
+    return [
+        required_line(week),
+        near_limit_line(week),
         f"Labour: {hours_text(week.labour_hours)} x {money(week.labour_rate, cur)} = "
         f"{money(week.labour_cost, cur)}; parts: {money(week.parts_cost, cur)}; total "
         f"{money(week.total_cost, cur)}.",
-        f"Expected loss removed by the booked jobs (failure within "
-        f"{week.risk_model.horizon_days} days x failure cost): "
-        f"{money(week.expected_loss_removed, cur)}.",
     ]
-    return lines
 
 
 def _booked_rows(week: WeekPlan, opens: dt.time) -> list[list[str]]:
@@ -126,7 +153,7 @@ def _booked_rows(week: WeekPlan, opens: dt.time) -> list[list[str]]:
             rows.append([
                 day_text(s.day), str(s.bay), span_text(s, opens) + _part_of(s),
                 clean(b.job.vehicle_id), clean(b.job.label), hours_text(s.hours),
-                b.job.status.value, b.job.consequence.value,
+                b.job.status.value, b.job.action, b.job.consequence.value,
                 ", ".join(clean(p) for p in b.job.parts) or "(parts not listed)",
             ])
     return rows
@@ -146,12 +173,13 @@ def _booked_words(c: CallEntry, opens: dt.time) -> str:
 
 def _call_rows(week: WeekPlan, opens: dt.time) -> list[list[str]]:
     return [[clean(c.vehicle_id), clean(c.name), clean(c.phone), clean(c.email),
-             str(c.due_date or "now"), c.status_words, _booked_words(c, opens)]
+             str(c.due_date or "now"), f"{c.action}: {c.status_words}",
+             _booked_words(c, opens)]
             for c in week.call_list]
 
 
 def _unplaced_rows(week: WeekPlan) -> list[list[str]]:
-    return [[clean(u.job.vehicle_id), clean(u.job.label), u.job.status.value,
+    return [[clean(u.job.vehicle_id), clean(u.job.label), u.job.status.value, u.job.action,
              "-" if u.job.hours is None else hours_text(u.job.hours), u.reason, clean(u.detail)]
             for u in week.unplaced]
 
@@ -174,7 +202,7 @@ def _cell_lines(week: WeekPlan, opens: dt.time) -> dict[tuple[dt.date, int], lis
     for d in week.days:
         for slot in d.bays:
             lines = [f"{span_text(s, opens)} {clean(s.job.vehicle_id)} {hours_text(s.hours)} "
-                     f"{s.job.status.value}"
+                     f"{s.job.status.value}" + (", replace now" if s.job.required else "")
                      + (f" {s.day_index}/{s.day_count}" if s.day_count > 1 else "")
                      for s in slot.segments]
             if slot.left > 1e-9:
@@ -216,13 +244,13 @@ def to_table(week: WeekPlan, opens: dt.time = OPENS) -> str:
     out.append(f"Booked jobs ({n}, {hours_text(week.labour_hours)})")
     if n:
         out += _columns(["Day", "Bay", "Time", "Vehicle", "Label", "Hours", "Status",
-                         "If it fails", "Parts"], _booked_rows(week, opens))
+                         "Action", "If it fails", "Parts"], _booked_rows(week, opens))
     else:
         out.append("  none")
     out.append("")
     out.append(f"Not placed ({len(week.unplaced)})")
     if week.unplaced:
-        out += _columns(["Vehicle", "Label", "Status", "Hours", "Reason", "Detail"],
+        out += _columns(["Vehicle", "Label", "Status", "Action", "Hours", "Reason", "Detail"],
                         _unplaced_rows(week))
     else:
         out.append("  none: every candidate is booked")
@@ -254,21 +282,17 @@ def to_table(week: WeekPlan, opens: dt.time = OPENS) -> str:
 JOB_FIELDS: tuple[str, ...] = (
     "kind", "day", "bay", "start", "end", "hours", "day_of_job", "vehicle", "label", "engine",
     "drive", "consequence", "status", "due_date", "job_hours", "parts", "parts_cost",
-    "expected_loss", "reason", "not_placed", "contact_name", "contact_phone",
+    "expected_loss", "reason", "not_placed", "contact_name", "contact_phone", "action",
 )
 PARTS_FIELDS: tuple[str, ...] = ("order_by", "quantity", "part", "vehicles", "in_stock")
 CALL_FIELDS: tuple[str, ...] = (
     "vehicle", "label", "name", "phone", "email", "due_date", "status", "status_words", "reason",
-    "booked_day", "bay", "start", "not_booked",
+    "booked_day", "bay", "start", "not_booked", "action",
 )
 
 
 def _iso(d: dt.date | None) -> str | None:
     return None if d is None else d.isoformat()
-
-
-def _round(x: float | None, n: int = 2) -> float | None:
-    return None if x is None else round(x, n)
 
 
 def job_record(job: WeekJob) -> dict[str, Any]:
@@ -278,9 +302,10 @@ def job_record(job: WeekJob) -> dict[str, Any]:
         "vehicle": job.vehicle_id, "label": job.label, "engine": job.engine,
         "drive": job.drive, "consequence": job.consequence.value, "status": job.status.value,
         "due_date": _iso(job.due_date), "job_hours": job.hours, "parts": list(job.parts),
-        "parts_cost": job.parts_cost, "expected_loss": _round(job.expected_loss),
+        "parts_cost": job.parts_cost, "expected_loss": job.expected_loss,
         "reason": job.reason, "interval": job.interval,
         "contact_name": c.name if c else None, "contact_phone": c.phone if c else None,
+        "action": job.action, "required": job.required,
     }
 
 
@@ -313,7 +338,7 @@ def call_record(c: CallEntry, opens: dt.time = OPENS) -> dict[str, Any]:
             "email": c.email, "due_date": _iso(c.due_date), "status": c.status.value,
             "status_words": c.status_words, "reason": c.reason,
             "booked_day": _iso(c.booked_day), "bay": c.bay, "start": start,
-            "not_booked": c.not_booked or None}
+            "not_booked": c.not_booked or None, "action": c.action}
 
 
 def job_rows(week: WeekPlan, opens: dt.time = OPENS) -> list[dict[str, Any]]:
@@ -372,8 +397,13 @@ def to_json_text(week: WeekPlan, opens: dt.time = OPENS) -> str:
             "labour_cost": round(week.labour_cost, 2), "parts_cost": round(week.parts_cost, 2),
             "total_cost": round(week.total_cost, 2),
             "parts_cost_unknown": list(week.parts_cost_unknown),
-            "expected_loss_removed": round(week.expected_loss_removed, 2),
+            "expected_loss_removed": week.expected_loss_removed,
             "expected_loss_unknown": list(week.loss_unknown),
+            "required_jobs": list(week.required_jobs),
+            "required_hours": round(week.required_hours, 4),
+            "required_cost": round(week.required_cost, 2),
+            "near_limit_jobs": list(week.near_limit_jobs),
+            "near_limit_cost": round(week.near_limit_cost, 2),
         },
         "risk_assumptions": {**week.risk_model.as_dict(), "text": week.risk_assumptions},
         "notes": list(week.notes),
@@ -398,6 +428,14 @@ def _md_table(headers: Sequence[str], rows: Iterable[Sequence[str]]) -> list[str
     return lines
 
 
+def _action_words(j: WeekJob) -> str:
+    if j.required:
+        why = ("past a limit" if j.status is Status.OVERDUE
+               else "no record of the belt now running")
+        return f"{j.action}: required, {why}; not optional"
+    return f"{j.action}: before {j.due_date}" if j.due_date else j.action
+
+
 def job_sheet(b: Booking, week: WeekPlan, opens: dt.time = OPENS) -> list[str]:
     """A printable sheet for one booked job."""
     j = b.job
@@ -408,6 +446,7 @@ def job_sheet(b: Booking, week: WeekPlan, opens: dt.time = OPENS) -> list[str]:
     lines = [
         f"### {md(j.vehicle_id)}: {md(j.label) or 'no label'}",
         "",
+        f"- **Action:** {_action_words(j)}",
         f"- **Booked:** bay {b.bay}, {md(when)}",
         f"- **Engine:** {md(j.engine)}, drive: {j.drive}",
         f"- **Interval in force:** {md(j.interval)}",
@@ -446,10 +485,11 @@ def to_markdown_text(week: WeekPlan, opens: dt.time = OPENS) -> str:
                     + [f"{d.booked:g} of {d.capacity:g} h"])
     out += _md_table(["Day", *(f"Bay {b}" for b in bays), "Booked"], grid)
     out += ["", f"## Booked jobs ({len(week.bookings)})", ""]
-    out += _md_table(["Day", "Bay", "Time", "Vehicle", "Label", "Hours", "Status", "If it fails",
-                      "Parts"], _booked_rows(week, opens)) if week.bookings else ["None."]
+    booked_heads = ["Day", "Bay", "Time", "Vehicle", "Label", "Hours", "Status", "Action",
+                    "If it fails", "Parts"]
+    out += _md_table(booked_heads, _booked_rows(week, opens)) if week.bookings else ["None."]
     out += ["", f"## Not placed ({len(week.unplaced)})", ""]
-    out += _md_table(["Vehicle", "Label", "Status", "Hours", "Reason", "Detail"],
+    out += _md_table(["Vehicle", "Label", "Status", "Action", "Hours", "Reason", "Detail"],
                      _unplaced_rows(week)) if week.unplaced else ["None: every job is booked."]
     out += ["", "## Parts to order", ""]
     out += _md_table(["Order by", "Qty", "Part", "For"], _parts_rows(week)) \
@@ -527,6 +567,7 @@ def _description(s: Segment, b: Booking, week: WeekPlan) -> str:
     j = s.job
     lines = [
         f"{j.vehicle_id}: {j.label}".rstrip(": "),
+        f"Action: {_action_words(j)}",
         f"Engine: {j.engine}, drive: {j.drive}",
         f"Interval: {j.interval}",
         f"Reason: {j.reason}",

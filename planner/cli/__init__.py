@@ -25,9 +25,6 @@ Timing-belt service and failure-risk planner.
 
 Reads a TOML fleet file and tells which cam drives are overdue or near their limit, by distance
 or age, whichever comes first, projected from odometer readings, and what a failure would cost.
-
-The maker's schedule and service information come first: this is a planning aid. Cam-drive work
-belongs to a qualified technician; a belt past its interval can stop the engine without warning.
 """
 
 EPILOG = """\
@@ -38,12 +35,15 @@ examples:
   beltplan list fleet.toml --status overdue --format csv -o overdue.csv
   beltplan check fleet.toml
   beltplan COMMAND --help      more on one command
+
 """
 
 
 def build_parser() -> argparse.ArgumentParser:
+    from planner.export import caution_block  # the full parser only: the UI starts without it
+
     parser = argparse.ArgumentParser(
-        prog="beltplan", description=DESCRIPTION, epilog=EPILOG,
+        prog="beltplan", description=DESCRIPTION + "\n" + caution_block(), epilog=EPILOG,
         formatter_class=argparse.RawDescriptionHelpFormatter,
     )
     parser.add_argument("--version", action="version", version=f"beltplan {__version__}")

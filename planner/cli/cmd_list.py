@@ -36,7 +36,11 @@ def register(sub: argparse._SubParsersAction) -> None:
         "  beltplan list fleet_examples/courier_fleet.toml\n"
         "  beltplan list fleet.toml --as-of 2027-01-31 --status overdue,near-limit\n"
         "  beltplan list fleet.toml --status overdue --format csv -o overdue.csv\n\n"
-        f"statuses: {', '.join(s.value for s in Status)}",
+        f"statuses: {', '.join(s.value for s in Status)}\n\n"
+        "Overdue and no-record belts lead with the action (replace now); their failure "
+        "probabilities are marked \"extrap.\" (beyond the maker's data) and their expected loss "
+        "reads \"required\": those jobs are due, not a cost decision.\n\n"
+        + export.caution_block(),
         formatter_class=argparse.RawDescriptionHelpFormatter,
     )
     p.add_argument("file", help="fleet file (TOML)")
@@ -98,7 +102,7 @@ def fit_columns(columns: Sequence[tuple[str, str]], records: Sequence[dict],
                 width: int) -> list[tuple[str, str]]:
     """Leave out the least needed columns until the rest fit `width` without folding."""
     def need(field: str, heading: str) -> int:
-        cells = [len(export.display(r.get(field), field)) for r in records]
+        cells = [len(export.cell(r, field)) for r in records]
         return max([len(heading), *cells]) + 3
 
     kept = list(columns)
@@ -111,10 +115,10 @@ def fit_columns(columns: Sequence[tuple[str, str]], records: Sequence[dict],
 
 def _console(buf: io.StringIO, plain: bool) -> Console:
     if plain:  # a file: no colour codes, a width that fits every column
-        return Console(file=buf, width=160, color_system=None, highlight=False, emoji=False)
+        return Console(file=buf, width=200, color_system=None, highlight=False, emoji=False)
     # The terminal: its own width and colour support (rich respects NO_COLOR).
     term = Console(highlight=False)
-    width = term.width if term.is_terminal else max(term.width, 160)
+    width = term.width if term.is_terminal else max(term.width, 200)
     return Console(file=buf, width=width, color_system=term.color_system,
                    force_terminal=term.is_terminal, highlight=False, emoji=False)
 
@@ -130,11 +134,14 @@ def render_table(plans: Sequence[VehiclePlan], records: Sequence[dict],
     for field, heading in columns:
         right = field in ("distance_remaining", "days_remaining", "life_used", "p_fail_horizon",
                           "expected_loss")
+        if field == "action":
+            table.add_column(heading, justify="left", no_wrap=True, style="bold")
+            continue
         table.add_column(heading, justify="right" if right else "left", no_wrap=True)
     for rec in records:
         cells = []
         for field, _ in columns:
-            value = export.display(rec.get(field), field)
+            value = export.cell(rec, field)
             style = STATUS_STYLE.get(value) if field == "status" else (
                 CONSEQUENCE_STYLE.get(value) if field == "consequence" else None)
             cells.append(Text(value, style=style or ""))  # Text: file content is never markup
@@ -143,5 +150,5 @@ def render_table(plans: Sequence[VehiclePlan], records: Sequence[dict],
     console.print(_summary(plans))
     for line in footer:
         console.print(Text(line, style="italic"))
-    console.print(Text(export.CAUTION, style="dim"))
+    console.print(Text("Caution: " + export.CAUTION, style="bold"))
     return buf.getvalue()

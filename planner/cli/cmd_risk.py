@@ -7,6 +7,7 @@ import json
 
 from planner import export
 from planner.cli.common import add_as_of, as_of_or_today, emit, load
+from planner.formats import percent
 from planner.reliability import weibull_cdf
 from planner.risk import FLEET_FIT, fitted_model, replacement_points, risk_model
 
@@ -22,7 +23,10 @@ def register(sub: argparse._SubParsersAction) -> None:
         epilog="examples:\n  beltplan risk fleet_examples/courier_fleet.toml\n"
         "  beltplan risk fleet.toml --format json\n\n"
         "Failures are belt jobs with reason = \"failed\"; scheduled and precaution jobs, and "
-        "belts still running, count as survivors (right-censored).",
+        "belts still running, count as survivors (right-censored).\n\n"
+        "The replacement point is never later than the maker's interval, and a fit from the "
+        "fleet's records never lengthens an interval: statuses always follow the maker's.\n\n"
+        + export.caution_block(),
         formatter_class=argparse.RawDescriptionHelpFormatter,
     )
     p.add_argument("file", help="fleet file (TOML)")
@@ -73,8 +77,8 @@ def run(args: argparse.Namespace) -> int:
     if report.fit is not None:
         f = report.fit
         share = _share(f.beta, f.eta)
-        lines.append(f"  fitted shape {f.beta:.2f}, scale {f.eta:.3f} of the interval "
-                     f"({share:.1%} failed by the maker's interval)")
+        lines.append(f"  fitted shape {f.beta:.2f}: {percent(share)} of belts failed by the "
+                     "maker's interval")
     lines.append(f"  {report.message}")
     if report.fit is not None and model.basis != FLEET_FIT:
         lines.append("  The fit comes from few failures: check it before you rely on it.")
@@ -101,7 +105,7 @@ def run(args: argparse.Namespace) -> int:
 
 
 def _pct(u: float | None) -> str:
-    return "–" if u is None else f"{u:.0%}"
+    return percent(u, 0)
 
 
 def _share(beta: float, eta: float) -> float:

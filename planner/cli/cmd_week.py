@@ -8,6 +8,7 @@ import datetime as dt
 from planner import week_export
 from planner.cli.common import add_as_of, as_of_or_today, emit, iso_date, load
 from planner.errors import PlannerError
+from planner.export import caution_block
 from planner.week import DEFAULT_INCLUDE, INCLUDE, MAX_WEEKS, plan_week
 
 EPILOG = f"""\
@@ -32,6 +33,11 @@ the earliest working day and bay with room, after its parts can arrive (ordered 
 planning date, parts_lead_days calendar days to arrive, none with kits_in_stock), never on
 a day the vehicle is unavailable; a job longer than a bay day runs on consecutive days of
 one bay. Clock times start at {week_export.OPENS:%H:%M}. Weeks: 1 to {MAX_WEEKS}.
+
+The totals keep required jobs (overdue or no belt record: due now, not optional) apart from
+near-limit jobs; only the near-limit jobs are set against the risk they remove.
+
+{caution_block()}
 """
 
 
@@ -55,8 +61,9 @@ def register(sub: argparse._SubParsersAction) -> None:
         "week", help="the workshop's week: belt jobs by day and bay, parts, call list, calendar",
         description="Plan the workshop's next week(s) of belt jobs from the [workshop] table: "
         "which job goes in which bay on which day, the hours left, every job that does not fit "
-        "and why, the parts to order and by when, the cost, the risk removed and the customers "
-        "to call. Export as CSV, JSON, Markdown job sheets or an iCalendar file.",
+        "and why, the parts to order and by when, the cost of the required jobs and of the "
+        "near-limit ones (with the risk those remove) and the customers to call. Export as "
+        "CSV, JSON, Markdown job sheets or an iCalendar file.",
         epilog=EPILOG,
         formatter_class=argparse.RawDescriptionHelpFormatter,
     )

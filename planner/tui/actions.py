@@ -101,8 +101,9 @@ ACTIONS: tuple[Action, ...] = (
            "Week plan", (WEEK,), target="screen"),
     Action("week_calls", "3", "call list", "Show the customers to call", "Week plan", (WEEK,),
            target="screen"),
-    Action("week_totals", "4", "totals", "Show hours, cost, the risk removed, the risk "
-           "assumptions and the notes", "Week plan", (WEEK,), target="screen"),
+    Action("week_totals", "4", "totals", "Show hours, the cost of the required jobs "
+           "apart from the near-limit ones, the risk assumptions and the notes", "Week plan",
+           (WEEK,), target="screen"),
     # The file
     Action("save", "ctrl+s", "save", "Save to the fleet file: checked, atomic, with a .bak "
            "of the previous version; refuses if the file changed on disk", "File", LOADED,

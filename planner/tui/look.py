@@ -32,14 +32,15 @@ CONSEQUENCE_STYLE = {
     "breakdown": Style(color="#d9c08a"),
 }
 WHAT_IT_MEANS = {
-    "overdue": "past a limit: book it now",
-    "no-record": "no belt record: replace on acquisition",
-    "near-limit": "within the warning distance or days",
+    "overdue": "past a limit: replace now; it can stop the engine without warning",
+    "no-record": "no belt record: replace now, as on acquisition",
+    "near-limit": "within the warning distance or days: book it before the due date",
     "ok": "not yet due",
     "on-condition": "chain or gear: no fixed interval",
     "engine-damage": "interference engine: valves meet pistons",
     "unverified": "interference not known: planned as engine damage",
-    "breakdown": "non-interference: stops, no internal damage",
+    "breakdown": "non-interference: a failure stops the engine; internal damage is less "
+                 "likely, not ruled out",
 }
 
 DIM = Style(dim=True)

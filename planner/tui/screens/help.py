@@ -87,8 +87,8 @@ def about_text(model_line: str | None) -> Text:
     text.append("Cautions\n", style="bold underline")
     text.append(export.CAUTION + "\n")
     for line in (
-        "At speed a drive failure also takes engine-driven power steering and brake "
-        "assistance: a safety matter, not only a cost.",
+        "Overdue belts and belts with no record are required jobs: replace them now. Their "
+        "risk figures extrapolate beyond the maker's data and are never a reason to wait.",
         "Interference not recorded is planned and costed as interference until someone "
         "checks it; diesels almost always are interference engines.",
     ):

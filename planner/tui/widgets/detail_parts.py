@@ -17,7 +17,15 @@ from rich.text import Text
 
 from planner import export
 from planner.fleet import Fleet
-from planner.plan import IntervalBasis, Limit, Status, VehiclePlan, odometer_points
+from planner.plan import (
+    Consequence,
+    IntervalBasis,
+    Limit,
+    Status,
+    VehiclePlan,
+    odometer_points,
+)
+from planner.risk import REQUIRED_STATUSES
 from planner.tui.look import (
     BOLD,
     DIM,
@@ -61,20 +69,24 @@ def heading(plan: VehiclePlan) -> Text:
 def what_to_do(plan: VehiclePlan) -> Text | None:
     """The advice for a vehicle that needs action, always with the cautions."""
     if plan.status is Status.OVERDUE:
-        lines = ["Book the cam-drive job now: past its interval, the belt can stop the engine "
-                 "without warning. Keep the vehicle's use to a minimum."]
+        if plan.consequence is Consequence.BREAKDOWN:
+            keep = ("Until it is done, use the vehicle as little as possible and never at "
+                    "speed where an engine stop is dangerous.")
+        else:
+            keep = ("Until it is done, take the vehicle off the road where possible: a "
+                    "failure can also wreck the engine.")
+        lines = [f"Replace now: book the cam-drive job. Past its interval the belt can stop "
+                 f"the engine without warning. {keep}"]
     elif plan.status is Status.NO_RECORD:
-        lines = ["No record of the belt now running: common practice is to replace it on "
-                 "acquisition rather than trust the odometer."]
+        lines = ["Replace now: no record of the belt now running. Common practice is to "
+                 "replace it on acquisition rather than trust the odometer."]
     elif plan.status is Status.NEAR_LIMIT and plan.due_date is not None:
         lines = [f"Book the job before {plan.due_date} ({plan.days_remaining} days)."]
     else:
         return None
     text = literal(lines[0] + "\n", Style(bold=True) + STATUS_STYLE.get(plan.status.value,
                                                                          Style()))
-    text.append("At speed a failure also takes engine-driven power steering and brake "
-                "assistance. ")
-    text.append(export.CAUTION, style="italic dim")
+    text.append("Caution: " + export.CAUTION, style="italic")
     return text
 
 
@@ -170,12 +182,18 @@ def risk(record: dict[str, Any], describe: str) -> RenderableType:
     if record.get("p_fail_horizon") is None and record.get("expected_loss") is None:
         return Text("the risk model does not apply to this drive", style=DIM)
     pairs: list[tuple[str, Text | str]] = [
-        ("in the horizon", export.display(record.get("p_fail_horizon"), "p_fail_horizon")),
-        ("before it is due", export.display(record.get("p_fail_before_due"),
-                                            "p_fail_before_due")),
-        ("expected loss", export.display(record.get("expected_loss"), "expected_loss")),
+        ("in the horizon", export.cell(record, "p_fail_horizon")),
+        ("before it is due", export.cell(record, "p_fail_before_due")),
+        ("expected loss", export.cell(record, "expected_loss")),
     ]
-    return Group(_rows(pairs), Text(describe, style="italic dim"))
+    parts: list[RenderableType] = []
+    if record.get("status") in REQUIRED_STATUSES:
+        parts.append(Text("Required now: these figures extrapolate beyond the maker's data "
+                          "and are no reason to wait.", style="bold"))
+    elif record.get("risk_extrapolated"):
+        parts.append(Text("extrap.: within the horizon the belt passes the maker's interval; "
+                          "the figure extrapolates beyond the maker's data.", style="bold"))
+    return Group(*parts, _rows(pairs), Text(describe, style="italic dim"))
 
 
 def notes(record: dict[str, Any], plan: VehiclePlan) -> Text:

@@ -13,7 +13,15 @@ from rich.text import Text
 from planner.export import CAUTION
 from planner.tui.look import ACCENT, DIM, literal, status_text
 from planner.week import WeekPlan
-from planner.week_export import OPENS, clock, day_text, hours_text, money
+from planner.week_export import (
+    OPENS,
+    clock,
+    day_text,
+    hours_text,
+    money,
+    near_limit_line,
+    required_line,
+)
 
 
 def _heading(words: str) -> Text:
@@ -60,8 +68,8 @@ def call_list(week: WeekPlan) -> RenderableType:
                 who.append("  ")
                 who.append(literal(part))
         table.add_row(literal(c.vehicle_id, ACCENT), who)
-        due = Text.assemble(status_text(c.status.value),
-                            f"  {c.status_words}, due {c.due_date or 'now'}")
+        due = Text.assemble(status_text(c.status.value), "  ",
+                            (c.action, "bold"), f": {c.status_words}, due {c.due_date or 'now'}")
         table.add_row("", due)
         if c.booked_day is not None:
             start = clock(c.booked_day, c.start_hour or 0.0, OPENS)
@@ -69,11 +77,13 @@ def call_list(week: WeekPlan) -> RenderableType:
         else:
             table.add_row("", literal(f"not booked: {c.not_booked}", "bold"))
     out.append(table)
+    out += [Text(""), literal(f"Caution: {CAUTION}", DIM)]
     return Group(*out)
 
 
 def totals(week: WeekPlan) -> RenderableType:
-    """Hours, cost, the risk the booked jobs take away, the assumptions, notes and caution."""
+    """Hours, the cost of the required jobs and of the near-limit ones (with the risk those take
+    away), the assumptions, notes and caution."""
     cur = week.currency
     table = Table.grid(padding=(0, 2))
     table.add_column(no_wrap=True, style=DIM)
@@ -88,8 +98,9 @@ def totals(week: WeekPlan) -> RenderableType:
                   f" = {money(week.labour_cost, cur)}")
     table.add_row("Parts", money(week.parts_cost, cur))
     table.add_row("Total", Text(money(week.total_cost, cur), style="bold"))
-    table.add_row("Risk removed", f"{money(week.expected_loss_removed, cur)} expected loss "
-                  f"(failure within {week.risk_model.horizon_days} days x failure cost)")
+    table.add_row("Required now", Text(required_line(week).removeprefix("Required now "),
+                                       style="bold"))
+    table.add_row("Near the limit", near_limit_line(week).removeprefix("Near the limit: "))
     out: list[RenderableType] = [_heading("Totals"), table, Text(""),
                                  _heading("Risk figures"), literal(week.risk_assumptions)]
     if week.notes:
