@@ -200,11 +200,12 @@ def test_replacement_point_is_never_past_the_makers_interval():
     model = risk.risk_model(fleet, AS_OF)
     for point in risk.replacement_points(fleet, model):
         assert point.u_star is None or point.u_star <= 1.0
-    # A law that wears out late puts the optimum past the interval: it is capped and says so.
+    # A law that wears out late puts the optimum past the interval: it is capped, and the
+    # message says to replace at the interval, never that running past it would pay.
     late = dataclasses.replace(model, beta=3.5, eta=5.0)
     capped = risk.replacement_points(fleet, late)[0]
     assert capped.u_star == 1.0 and capped.capped
-    assert "capped" in capped.message
+    assert "replace at the maker's interval, never later" in capped.message
 
 
 def test_replacement_point_with_costs_from_the_profile():

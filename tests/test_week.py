@@ -119,11 +119,13 @@ def test_two_bays_eight_hours_five_jobs():
     assert week.labour_hours == 20.5 and week.labour_cost == 1025.0
     assert week.parts_cost == 1000.0 and week.total_cost == 2025.0
     assert week.capacity == 80.0  # 5 days x 2 bays x 8 h
-    # Equal life used -> equal probability p; the loss removed is p x (5000 + ... + 1000).
+    # Equal life used -> equal probability p for all five.
     a = assess_fleet_plan(fleet, FRI)
     p = a.risks["A"].p_fail_horizon
     assert all(abs(a.risks[v].p_fail_horizon - p) < 1e-15 for v in "BCDE")
-    assert week.expected_loss_removed == pytest.approx(15000 * p, rel=1e-12)
+    # All five are overdue: required jobs, costed apart, with no risk figure set against them.
+    assert week.required_jobs == tuple("ACBDE") and week.required_cost == 2025.0
+    assert week.near_limit_jobs == () and week.expected_loss_removed == 0
     assert "Weibull" in week.risk_assumptions and "assumed" in week.risk_assumptions
 
 
@@ -444,8 +446,13 @@ def test_week_bookkeeping(case):
     assert sum(d.booked for d in week.days) == pytest.approx(week.labour_hours)
     assert week.labour_cost == pytest.approx(week.labour_hours * 50.0)
     assert week.parts_cost == pytest.approx(sum(b.job.parts_cost or 0 for b in week.bookings))
+    # Risk removed counts the near-limit jobs only; required (overdue, no record) jobs are
+    # costed apart, and the two parts make the whole.
     assert week.expected_loss_removed == pytest.approx(
-        sum(b.job.expected_loss or 0 for b in week.bookings))
+        sum(b.job.expected_loss or 0 for b in week.bookings if b.job.status.value
+            == "near-limit"))
+    assert sorted(week.required_jobs + week.near_limit_jobs) == sorted(placed)
+    assert week.required_cost + week.near_limit_cost == pytest.approx(week.total_cost)
     for d in week.days:
         for slot in d.bays:
             assert sum(s.hours for s in slot.segments) == pytest.approx(slot.booked)

@@ -242,7 +242,8 @@ def test_json(week):
     assert (doc["as_of"], doc["start"], doc["end"]) == ("2026-12-04", "2026-12-07", "2026-12-13")
     assert doc["included_statuses"] == ["overdue", "no-record", "near-limit"]
     assert doc["totals"]["labour_hours"] == 22.5 and doc["totals"]["total_cost"] == 2400.0
-    assert doc["totals"]["expected_loss_removed"] == round(week.expected_loss_removed, 2)
+    # Full precision in JSON (never rounded to a reassuring zero).
+    assert doc["totals"]["expected_loss_removed"] == week.expected_loss_removed
     wed = next(d for d in doc["days"] if d["day"] == "2026-12-09")
     assert (wed["working"], wed["closed"], wed["bays"]) == (False, True, [])
     g2 = next(b for b in doc["bookings"] if b["vehicle"] == "G-02")
@@ -270,8 +271,9 @@ def test_table_shows_the_week(week):
     text = to_table(week)
     assert "Wed 2026-12-09 | closed (holiday)" in text
     assert "Sat 2026-12-12" not in text  # a day off every week takes no row
-    assert "08:00-16:00 G-02 8 h overdue 1/2" in text and "08:00-12:00 G-02 4 h overdue 2/2" in text
-    assert "Mon 2026-12-07 | 08:00-11:30 G-01 3.5 h overdue" in text
+    assert "08:00-16:00 G-02 8 h overdue, replace now 1/2" in text
+    assert "08:00-12:00 G-02 4 h overdue, replace now 2/2" in text
+    assert "Mon 2026-12-07 | 08:00-11:30 G-01 3.5 h overdue, replace now" in text
     assert "15 of 16 h" in text and "G-04" in text and "no labour_hours set" in text
     assert text.rstrip().endswith(CAUTION)
 
