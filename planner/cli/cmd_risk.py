@@ -7,7 +7,7 @@ import json
 
 from planner import export
 from planner.cli.common import add_as_of, as_of_or_today, emit, load
-from planner.formats import percent
+from planner.formats import money, percent
 from planner.reliability import weibull_cdf
 from planner.risk import FLEET_FIT, fitted_model, replacement_points, risk_model
 
@@ -91,8 +91,8 @@ def run(args: argparse.Namespace) -> int:
         head += f"  {'(fleet fit)':>11}"
     lines.append(head)
     for p in points:
-        row = (f"  {p.profile:<{width}}  {p.planned_cost:>8,.0f}{cur:<4}  "
-               f"{p.failure_cost:>8,.0f}{cur:<4}  {_pct(p.u_star):>10}")
+        row = (f"  {p.profile:<{width}}  {money(p.planned_cost, estimate=False):>8}{cur:<4}  "
+               f"{money(p.failure_cost, estimate=False):>8}{cur:<4}  {_pct(p.u_star):>10}")
         if alt_points:
             row += f"  {_pct(alt_points[p.profile].u_star):>11}"
         lines.append(row + f"  {p.message}")

@@ -12,6 +12,7 @@ from collections.abc import Sequence
 from rich.style import Style
 from rich.text import Text
 
+from planner.formats import percent
 from planner.tui.look import DIM
 
 FULL, EMPTY, OVER = "█", "░", "▶"
@@ -25,7 +26,7 @@ def life_bar(fraction: float | None, width: int = 30, style: Style | str = "") -
     text = Text(FULL * filled, style=style)
     text.append(EMPTY * (width - filled), style=DIM)
     text.append(OVER if fraction > 1 else " ", style=style)
-    text.append(f" {fraction * 100:.0f} % used")
+    text.append(f" {percent(fraction, 0)} used")
     if fraction > 1:
         text.append(" (past the limit)", style="bold")
     return text

@@ -17,6 +17,7 @@ from rich.text import Text
 
 from planner import export
 from planner.fleet import Fleet
+from planner.formats import money
 from planner.plan import (
     Consequence,
     IntervalBasis,
@@ -121,12 +122,11 @@ def engine(plan: VehiclePlan, fleet: Fleet) -> Table:
     if spec.labour_hours:
         job.append(f"{spec.labour_hours:g} h labour")
     if spec.parts_cost is not None:
-        job.append(f"parts {spec.parts_cost:,.0f} {fleet.fleet.currency}".rstrip())
+        job.append(f"parts {money(spec.parts_cost, fleet.fleet.currency, estimate=False)}")
     if job:
         pairs.append(("job", "; ".join(job)))
     if spec.failure_cost is not None:
-        pairs.append(("if it fails", f"about {spec.failure_cost:,.0f} "
-                      f"{fleet.fleet.currency}".rstrip()))
+        pairs.append(("if it fails", f"about {money(spec.failure_cost, fleet.fleet.currency)}"))
     return _rows(pairs)
 
 
