@@ -61,8 +61,12 @@ async def test_narrow_window_hides_columns_and_says_so_wide_shows_them():
         assert sum(table.columns[c.field].get_render_width(table) for c in table.shown) <= 80
         await pilot.resize_terminal(*LARGE)
         await until(pilot, lambda: "label" in [c.field for c in table.shown], what="label")
+        # Wide: the export's columns in its order, less those left out first (the action,
+        # which the status's symbol and word already say, goes first).
+        hidden = {c.field for c in table.hidden}
         assert [c.field for c in table.shown] == [
-            f for f, _ in export.table_columns("km")][:len(table.shown)]
+            f for f, _ in export.table_columns("km") if f not in hidden]
+        assert hidden <= {"action", "expected_loss"}
 
 
 @sync
@@ -146,7 +150,7 @@ async def test_detail_view_explains_the_most_urgent_vehicle():
         await until(pilot, lambda: screen_name(app) == "DetailScreen")
         body = {w.id: text_of(w) for w in app.screen.query("Static") if w.id}
         assert "KL-01" in body["d-heading"] and "overdue" in body["d-heading"]
-        assert "Book the cam-drive job now" in body["d-todo"]
+        assert body["d-todo"].startswith("Replace now")  # the action leads
         assert export.CAUTION.split(":")[0] in body["d-todo"]  # the cautions go with advice
         assert "qv16" in body["d-engine"] and "severe duty" in body["d-engine"]
         assert "90,000 km or 60 months" in body["d-engine"]

@@ -24,7 +24,8 @@ CELL_PADDING = 1
 RIGHT = {"distance_remaining", "days_remaining", "life_used", "p_fail_horizon",
          "p_fail_before_due", "expected_loss", "est_odometer", "daily_distance"}
 # Left out first when the terminal is too narrow; the id, status, consequence and due date stay.
-DROP_ORDER = ("expected_loss", "drive", "deciding_limit", "label", "life_used",
+# The action repeats the status's meaning (✗ overdue: replace now), so it goes first.
+DROP_ORDER = ("action", "expected_loss", "drive", "deciding_limit", "label", "life_used",
               "distance_remaining", "p_fail_horizon", "days_remaining")
 
 

@@ -34,6 +34,7 @@ SHADE_STYLES = (ACCENT, Style(color="#c98a2e"))  # and in two ambers, for colour
 FREE = "·"
 DAY_BAND = Style(bgcolor="#2a2e33")  # the theme's panel colour: a band per day
 WIDE = 70  # from this width consequences are written out, below it only their symbol
+ACTION_WIDTH = 110  # from this width a required job's line says "replace now" before its label
 STATUS_WIDTH = len("✗ near-limit")  # the longest status a booked job can have
 CONSEQUENCE_WIDTH = len("◆ engine-damage")
 
@@ -89,6 +90,10 @@ class BoardLayout:
         line.append(" ")
         line.append_text(_consequence(job, self.wide))
         line.append("  ")
+        # Due now: the action before the label (narrow, the status word says it, and the day
+        # count must stay in view).
+        if job.required and self.width >= ACTION_WIDTH:
+            line.append("replace now ", style="bold")
         line.append_text(tail)
         line.truncate(self.width, overflow="ellipsis")
         line.no_wrap = True
