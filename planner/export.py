@@ -150,17 +150,27 @@ def display(value: Any, field: str = "") -> str:
     return str(value)
 
 
+def mark(record: dict[str, Any], field: str) -> str | None:
+    """How a record's risk figure is marked for people: `EXTRAPOLATED` beside a probability
+    past the maker's interval (overdue, no belt record, or passing it within the horizon),
+    `REQUIRED` in place of an expected loss for a job that is due; None for a plain figure."""
+    if not record.get("risk_extrapolated"):
+        return None
+    if field in ("p_fail_horizon", "p_fail_before_due") and record.get(field) is not None:
+        return EXTRAPOLATED
+    if field == "expected_loss" and record.get("status") in REQUIRED_STATUSES:
+        return REQUIRED
+    return None
+
+
 def cell(record: dict[str, Any], field: str) -> str:
-    """A record's value as people read it. Past the maker's interval (overdue, or no belt
-    record) a probability is marked as an extrapolation beyond the maker's data, and no
-    expected loss is set against a job that is required."""
-    value = record.get(field)
-    if record.get("risk_extrapolated"):
-        if field in ("p_fail_horizon", "p_fail_before_due") and value is not None:
-            return f"{display(value, field)} {EXTRAPOLATED}"
-        if field == "expected_loss" and record.get("status") in REQUIRED_STATUSES:
-            return REQUIRED
-    return display(value, field)
+    """A record's value as people read it, marked as `mark` says: no expected loss is set
+    against a job that is required."""
+    how = mark(record, field)
+    if how == REQUIRED:
+        return REQUIRED
+    text = display(record.get(field), field)
+    return f"{text} {how}" if how else text
 
 
 def to_json(records: Sequence[dict[str, Any]], as_of: dt.date, unit: str,

@@ -460,6 +460,25 @@ def test_widths_of_numbers_are_measured_at_their_extremes(case):
 
 
 @settings(max_examples=200, deadline=None)
+@given(st.sampled_from(["p_fail_horizon", "p_fail_before_due", "expected_loss"]).flatmap(
+    lambda name: st.tuples(st.just(name), st.lists(st.tuples(
+        st.one_of(st.none(), _NUMBER_FIELDS[name]), st.booleans(),
+        st.sampled_from(["overdue", "no-record", "near-limit", "ok"])),
+        min_size=1, max_size=30))))
+@example(("expected_loss", [(None, True, "overdue"), (1e9, False, "ok")]))
+@example(("p_fail_horizon", [(0.5, True, "ok"), (0.0, False, "ok")]))
+def test_widths_of_marked_risk_figures_equal_the_widths_of_their_cells(case):
+    """Figures marked as extrapolated, and "required" in place of a loss, are measured per
+    mark: the same widths as measuring each cell (the reference)."""
+    name, rows = case
+    records = [{"id": f"V{k}", name: v, "risk_extrapolated": x, "status": s}
+               for k, (v, x, s) in enumerate(rows)]
+    column = [cols.Column(name, "H")]
+    cells = [{name: cols.cell(r, name)} for r in records]
+    assert cols.natural_widths_of(column, records) == cols.natural_widths(column, cells)
+
+
+@settings(max_examples=200, deadline=None)
 @given(st.sampled_from(["label", "id", "drive"]),
        st.lists(st.one_of(st.none(), st.text(st.characters(codec="utf-8",
                                                             exclude_categories=("Cc", "Cs")),

@@ -53,9 +53,9 @@ def cell(record: dict[str, Any], field: str) -> Text:
         return status_text(value)
     if field == "consequence":
         return consequence_text(value)
-    if value is None:
+    if value is None and (field not in MARKED or export.mark(record, field) is None):
         return Text("–", style=DIM)
-    text = literal(export.display(value, field))
+    text = literal(export.cell(record, field))
     if field == "label":
         text.truncate(LABEL_WIDTH, overflow="ellipsis")
     if field == "days_remaining" and isinstance(value, int) and value < 0:
@@ -90,40 +90,59 @@ def natural_widths_of(columns: Sequence[Column],
     (`export.display`: digits, separators, a fixed number of decimals for a float) is never
     narrower for a value of its kind further from zero, so the widest number of a column is,
     of its integers and of its floats, the smallest or the largest, or the smallest positive
-    (shown as "<0.1 %" in a probability column). A date is always ten characters (ISO 8601,
-    `YYYY-MM-DD`), so one date stands for all. Printable ASCII text is as wide as it is long;
-    any other text is measured once per distinct value.
+    (shown as "< 0.1 %" in a probability column). Risk figures marked by `export.mark`
+    (extrapolated, or "required" in place of a loss) are measured per mark. A date is always
+    ten characters (ISO 8601, `YYYY-MM-DD`), so one date stands for all. Printable ASCII text
+    is as wide as it is long; any other text is measured once per distinct value.
     """
     widths = {}
     for col in columns:
         name = col.field
-        values = [rec.get(name) for rec in records]
-        numbers = [v for v in values if isinstance(v, (int, float)) and not isinstance(v, bool)]
-        probes: list[Any] = []
-        for kind in (int, float):  # each kind apart: `1.0` shows a decimal, `1` none
-            same = [v for v in numbers if type(v) is kind]
-            if same:
-                positive = [v for v in same if v > 0]
-                probes += [min(same), max(same)] + ([min(positive)] if positive else [])
-        probes += [v for v in numbers if type(v) not in (int, float)]  # a subclass: each one
-        others = [v for v in values if not isinstance(v, (int, float)) or isinstance(v, bool)]
-        dates = [v for v in others if type(v) is dt.date]  # not a datetime: longer text
-        others = [v for v in others if type(v) is not dt.date]
-        probes += dates[:1]
-        try:
-            distinct = set(others)
-        except TypeError:  # a list (not shown in the table today): measure each one
-            distinct = others  # type: ignore[assignment]
-        plain = [v for v in distinct if isinstance(v, str) and v.isascii() and v.isprintable()]
-        if plain:
-            longest = max(plain, key=len)
-            probes.append(longest)  # as wide as the longest (cut the same way, if a label)
-            plain_set = set(plain)
-            distinct = [v for v in distinct  # type: ignore[assignment]
-                        if not (isinstance(v, str) and v in plain_set)]
-        probes += distinct
-        widths[name] = max([len(col.heading)] + [cell_width(v, name) for v in probes])
+        if name in MARKED:  # marked figures (extrap., required) measured apart
+            groups: dict[str | None, list[Any]] = {}
+            for rec in records:
+                groups.setdefault(export.mark(rec, name), []).append(rec.get(name))
+            found = [_values_width(vs, name) + (len(how) + 1 if how else 0)
+                     for how, vs in groups.items() if how != export.REQUIRED]
+            if export.REQUIRED in groups:
+                found.append(len(export.REQUIRED))
+            widths[name] = max([len(col.heading), *found])
+        else:
+            widths[name] = max(len(col.heading), _values_width(
+                [rec.get(name) for rec in records], name))
     return widths
+
+
+MARKED = frozenset({"p_fail_horizon", "p_fail_before_due", "expected_loss"})
+
+
+def _values_width(values: list[Any], name: str) -> int:
+    """The widest plain cell of `values` in column `name` (see `natural_widths_of`)."""
+    numbers = [v for v in values if isinstance(v, (int, float)) and not isinstance(v, bool)]
+    probes: list[Any] = []
+    for kind in (int, float):  # each kind apart: `1.0` shows a decimal, `1` none
+        same = [v for v in numbers if type(v) is kind]
+        if same:
+            positive = [v for v in same if v > 0]
+            probes += [min(same), max(same)] + ([min(positive)] if positive else [])
+    probes += [v for v in numbers if type(v) not in (int, float)]  # a subclass: each one
+    others = [v for v in values if not isinstance(v, (int, float)) or isinstance(v, bool)]
+    dates = [v for v in others if type(v) is dt.date]  # not a datetime: longer text
+    others = [v for v in others if type(v) is not dt.date]
+    probes += dates[:1]
+    try:
+        distinct = set(others)
+    except TypeError:  # a list (not shown in the table today): measure each one
+        distinct = others  # type: ignore[assignment]
+    plain = [v for v in distinct if isinstance(v, str) and v.isascii() and v.isprintable()]
+    if plain:
+        longest = max(plain, key=len)
+        probes.append(longest)  # as wide as the longest (cut the same way, if a label)
+        plain_set = set(plain)
+        distinct = [v for v in distinct  # type: ignore[assignment]
+                    if not (isinstance(v, str) and v in plain_set)]
+    probes += distinct
+    return max([0] + [cell_width(v, name) for v in probes])
 
 
 def cell_width(value: Any, field: str) -> int:

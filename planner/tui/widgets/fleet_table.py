@@ -15,6 +15,7 @@ from typing import Any
 from rich.text import Text
 from textual.message import Message
 
+from planner import export
 from planner.tui import columns as cols
 from planner.tui.view import TRIAGE, Listing, View
 from planner.tui.widgets.lazy_table import LazyTable, TableColumn
@@ -63,7 +64,8 @@ class TableRows:
             if col.field in UNIQUE or not isinstance(value, Hashable):
                 row[col.field] = cols.row_cells(rec, (col,))[0]
                 continue
-            key = (col.field, type(value), value)
+            key = (col.field, type(value), value,
+                   export.mark(rec, col.field) if col.field in cols.MARKED else None)
             text = shared.get(key)
             if text is None:
                 text = shared[key] = cols.row_cells(rec, (col,))[0]
