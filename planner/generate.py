@@ -1,7 +1,8 @@
 """Invented fleets of any size, for benchmarks and scale tests. Seeded: same seed, same file.
 
-Every id, label and engine code is made up. Vehicles get a few years of odometer readings at a
-rate of their own, and a belt-job history (on schedule, early, or failed) consistent with them.
+Every id, label and engine code is made up, and the intervals are off-round figures of our own
+(no maker's). Vehicles get a few years of odometer readings at a rate of their own, and a
+belt-job history (on schedule, early, or failed) consistent with them.
 
     python -m planner.generate 10000 -o /tmp/fleet_10k.toml --seed 7
 """
@@ -13,10 +14,10 @@ import datetime as dt
 import random
 
 PROFILES = {
-    "gen-p14": ("petrol", "belt", "interference", 110000, 72, 2.5, 190.0, 3200.0),
-    "gen-d20": ("diesel", "belt", "unknown", 150000, 96, 4.0, 320.0, 5100.0),
-    "gen-p12": ("petrol", "belt", "non-interference", 90000, 60, 2.0, 150.0, 500.0),
-    "gen-w10": ("petrol", "wet-belt", "interference", 140000, 120, 6.0, 300.0, 4300.0),
+    "gen-p14": ("petrol", "belt", "interference", 108300, 71, 2.5, 190.0, 3200.0),
+    "gen-d20": ("diesel", "belt", "unknown", 151700, 97, 4.0, 320.0, 5100.0),
+    "gen-p12": ("petrol", "belt", "non-interference", 88400, 61, 2.0, 150.0, 500.0),
+    "gen-w10": ("petrol", "wet-belt", "interference", 137900, 113, 6.0, 300.0, 4300.0),
     "gen-c22": ("diesel", "chain", "interference", None, None, None, None, 5800.0),
     "gen-g30": ("diesel", "gear", "interference", None, None, None, None, None),
 }
@@ -25,7 +26,7 @@ WEIGHTS = (30, 25, 20, 12, 10, 3)
 
 def _profile_toml(pid: str, spec: tuple) -> str:
     fuel, drive, interference, dist, months, hours, parts_cost, failure = spec
-    lines = [f"[engines.{pid}]", f'description = "Invented engine {pid}"', f'fuel = "{fuel}"',
+    lines = [f"[engines.{pid}]", f'description = "Engine {pid} (invented)"', f'fuel = "{fuel}"',
              f'drive = "{drive}"', f'interference = "{interference}"']
     if dist is not None:
         lines += [f"interval_distance = {dist}", f"interval_months = {months}",

@@ -95,7 +95,7 @@ def test_any_reading_round_trips(day, odo):
 # -- belt jobs --------------------------------------------------------------------------------
 
 JOB = {"date": D(2026, 12, 7), "odometer": 226000, "reason": "scheduled",
-       "work": 'belt kit, "QV16" pump', "notes": ""}
+       "work": 'belt kit, "Tesk" pump', "notes": ""}
 
 
 def test_add_job_after_existing_jobs():
@@ -106,7 +106,7 @@ def test_add_job_after_existing_jobs():
     assert tomllib.loads(new) == expected
     assert kept_everything(TEXT, new)
     # The blank line that separated KL-01 from KL-02 still does.
-    assert '\nwork = "belt kit, \\"QV16\\" pump"\n\n[[vehicles]]\nid = "KL-02"' in new
+    assert '\nwork = "belt kit, \\"Tesk\\" pump"\n\n[[vehicles]]\nid = "KL-02"' in new
 
 
 def test_add_first_job_to_a_vehicle():
@@ -131,7 +131,7 @@ def test_unknown_vehicle_is_a_planner_error():
 
 # -- vehicles ---------------------------------------------------------------------------------
 
-NEW_VEHICLE = {"id": "KL-20", "label": "[red]van[/]", "engine": "qv16", "duty": "normal",
+NEW_VEHICLE = {"id": "KL-20", "label": "[red]van[/]", "engine": "tesk", "duty": "normal",
                "in_service": D(2026, 1, 5), "in_service_odometer": 10, "belt_history": "known",
                "drive": None, "notes": ""}
 
@@ -139,13 +139,13 @@ NEW_VEHICLE = {"id": "KL-20", "label": "[red]van[/]", "engine": "qv16", "duty": 
 def test_add_vehicle_at_the_end_in_reference_order():
     new = edit.add_vehicle(TEXT, NEW_VEHICLE)
     expected = copy.deepcopy(DATA)
-    expected["vehicles"].append({"id": "KL-20", "label": "[red]van[/]", "engine": "qv16",
+    expected["vehicles"].append({"id": "KL-20", "label": "[red]van[/]", "engine": "tesk",
                                  "duty": "normal", "in_service": D(2026, 1, 5),
                                  "in_service_odometer": 10, "belt_history": "known"})
     assert tomllib.loads(new) == expected
     assert kept_everything(TEXT, new)
     assert new.endswith('work = "belt kit and water pump"\n\n[[vehicles]]\nid = "KL-20"\n'
-                        'label = "[red]van[/]"\nengine = "qv16"\nduty = "normal"\n'
+                        'label = "[red]van[/]"\nengine = "tesk"\nduty = "normal"\n'
                         'in_service = 2026-01-05\nin_service_odometer = 10\n'
                         'belt_history = "known"\n')
 
@@ -160,7 +160,7 @@ def test_add_vehicle_to_a_file_without_vehicles():
 
 def test_edit_vehicle_touches_only_changed_keys_and_keeps_their_comments():
     values = {"label": "Van 1", "duty": "severe", "belt_history": "known", "notes": "new",
-              "in_service": D(2020, 2, 3), "in_service_odometer": 12, "engine": "qv16"}
+              "in_service": D(2020, 2, 3), "in_service_odometer": 12, "engine": "tesk"}
     new = edit.edit_vehicle(TEXT, "KL-01", values)
     changed = [(a, b) for a, b in zip(TEXT.splitlines(), new.splitlines(), strict=False)
                if a != b]
@@ -227,11 +227,11 @@ def test_new_profile_goes_after_the_last_profile_and_before_the_vehicles_heading
 
 
 def test_edit_profile_keeps_comments():
-    new = edit.set_engine(TEXT, "qv16", {"labour_hours": 4.0, "severe_interval_months": 60,
+    new = edit.set_engine(TEXT, "tesk", {"labour_hours": 4.0, "severe_interval_months": 58,
                                          "failure_cost": 4100.0})
-    assert tomllib.loads(new)["engines"]["qv16"]["labour_hours"] == 4.0
+    assert tomllib.loads(new)["engines"]["tesk"]["labour_hours"] == 4.0
     assert "failure_cost = 4100.0              # head repair estimate" in new
-    assert "severe_interval_months = 60\n" in new  # unchanged line left as it was
+    assert "severe_interval_months = 58\n" in new  # unchanged line left as it was
 
 
 def test_first_profile_in_a_file_without_engines():

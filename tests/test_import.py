@@ -368,7 +368,7 @@ def test_belt_job_details_without_a_belt_job_are_not_dropped_silently():
 
 def test_words_read_as_values_are_reported():
     text = "Fleet no,Drive,Interference?,Interval (km),Interval (years),In service\n" \
-        "BF-1,Timing belt,Yes,120000,6,2020-02-03\nBF-2,belt in oil,no,150000,10,2020-02-03\n"
+        "BF-1,Timing belt,Yes,120000,6,2020-02-03\nBF-2,belt in oil,no,148700,9,2020-02-03\n"
     result = importer.import_fleet(text, source="x.csv", when=WHEN)
     one, two = result.fleet.vehicles
     assert (one.drive.value, one.interference.value, one.interval_months) == (
@@ -422,11 +422,11 @@ def test_fields_members_do_not_share_stay_on_the_vehicle():
 
 def test_an_engine_column_names_the_profiles():
     text = "Fleet no,Engine,Drive,Interval (km),Interval (months),In service\n" \
-        "BF-1,QV16,belt,120000,72,2020-02-03\nBF-2,QV16,belt,120000,72,2021-02-03\n" \
-        "BF-3,NK12,belt,90000,60,2021-02-03\n"
+        "BF-1,Tesk,belt,117300,73,2020-02-03\nBF-2,Tesk,belt,117300,73,2021-02-03\n" \
+        "BF-3,Plim,belt,91300,62,2021-02-03\n"
     fleet = importer.import_fleet(text, source="x.csv", when=WHEN).fleet
-    assert set(fleet.engines) == {"QV16", "NK12"}
-    assert [v.engine for v in fleet.vehicles] == ["QV16", "QV16", "NK12"]
+    assert set(fleet.engines) == {"Tesk", "Plim"}
+    assert [v.engine for v in fleet.vehicles] == ["Tesk", "Tesk", "Plim"]
 
 
 def test_defaults_the_file_relies_on_are_said_out_loud():

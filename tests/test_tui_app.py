@@ -152,13 +152,15 @@ async def test_detail_view_explains_the_most_urgent_vehicle():
         assert "KL-01" in body["d-heading"] and "overdue" in body["d-heading"]
         assert body["d-todo"].startswith("Replace now")  # the action leads
         assert export.CAUTION.split(":")[0] in body["d-todo"]  # the cautions go with advice
-        assert "qv16" in body["d-engine"] and "severe duty" in body["d-engine"]
-        assert "90,000 km or 60 months" in body["d-engine"]
+        assert "tesk" in body["d-engine"] and "severe duty" in body["d-engine"]
+        assert "88,600 km or 58 months" in body["d-engine"]
         assert "2023-01-16 at 96,410 km" in body["d-install"]
         assert "km/day" in body["d-install"] and "est. odometer" in body["d-install"]
-        assert "186,410 km" in body["d-limits"] and "◀ decides" in body["d-limits"]
-        assert "2028-01-16" in body["d-limits"]
-        assert "144 % used" in body["d-life"]
+        # The severe limits: 96,410 + 88,600 = 185,010 km; 2023-01-16 + 58 months = 2027-11-16.
+        assert "185,010 km" in body["d-limits"] and "◀ decides" in body["d-limits"]
+        assert "2027-11-16" in body["d-limits"]
+        # 129,421 km run since the job (the estimate, 225,831 km, less 96,410) / 88,600 = 146 %.
+        assert "146 % used" in body["d-life"]
         assert "●" in body["d-odometer"] and "○" in body["d-odometer"]
         assert "assumed" in body["d-risk"]  # the risk model's assumptions go with the figure
         assert "severe-service interval is in force" in body["d-notes"]

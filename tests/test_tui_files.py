@@ -70,8 +70,8 @@ async def test_a_file_changed_behind_our_back_is_not_overwritten_and_nothing_is_
         await opened(pilot)
         await record_job(pilot)
         ours = app.session.text
-        theirs = path.read_text().replace('name = "Kestrel Lane Couriers"',
-                                          'name = "Kestrel Lane Couriers Ltd"')
+        theirs = path.read_text().replace('name = "Pellory Lane Couriers"',
+                                          'name = "Pellory Lane Couriers Ltd"')
         path.write_text(theirs)  # someone else saves meanwhile
         await pilot.press("ctrl+s")
         await until(pilot, lambda: screen_name(app) == "AskDialog", what="refusal")
@@ -139,15 +139,15 @@ async def test_quit_without_changes_does_not_ask():
 async def test_bad_file_opens_the_error_view_then_reload_after_the_fix(tmp_path):
     path = copy_example(tmp_path)
     good = path.read_text()
-    path.write_text(good.replace('engine = "nk12"\nin_service = 2024-03-18',
-                                 'engine = "nk21"\nin_service = 2024-03-18')
+    path.write_text(good.replace('engine = "plim"\nin_service = 2024-03-18',
+                                 'engine = "plimm"\nin_service = 2024-03-18')
                     .replace("odometer = 196900", "odometer = 96900"))
     app = make_app(path)
     async with app.run_test(size=SMALL) as pilot:
         await opened(pilot)
         assert screen_name(app) == "ErrorScreen"
         words = " ".join(text_of(app.screen.query_one("#e-problems")).split())
-        assert "vehicle KL-07 · field engine" in words and "did you mean 'nk12'?" in words
+        assert "vehicle KL-07 · field engine" in words and "did you mean 'plim'?" in words
         assert "line 189" in words
         assert "odometer goes backwards" in words and "fix correct the reading" in words
         assert "ctrl+r" in text_of(app.screen.query_one("#e-help"))
@@ -216,7 +216,7 @@ async def test_export_the_filtered_list_with_the_clis_writers(tmp_path):
         assert doc["caution"] == export.CAUTION and "risk_assumptions" in doc
         await export_as(pilot, "markdown", tmp_path / "overdue.md")
         md = (tmp_path / "overdue.md").read_text()
-        assert md.startswith("# Cam-drive plan: Kestrel Lane Couriers on 2026-12-07")
+        assert md.startswith("# Cam-drive plan: Pellory Lane Couriers on 2026-12-07")
         assert "4 vehicles: 4 overdue" in md and "**Caution.**" in md
 
 

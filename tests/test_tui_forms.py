@@ -141,13 +141,13 @@ async def test_add_vehicle_valid_and_a_duplicate_id_rejected(tmp_path):
         await opened(pilot)
         await open_form(pilot, "a")
         fill(app, id="KL-02", label="twin", in_service="2026-01-05")
-        app.screen.query_one("#f-engine", Select).value = "qv16"
+        app.screen.query_one("#f-engine", Select).value = "tesk"
         await apply(pilot, closes=False)
         assert "already used" in problems_text(app)
         fill(app, id="KL-20")
         await apply(pilot)
         assert "KL-20" in listed_ids(app)
-        assert vehicle(app, "KL-20") == {"id": "KL-20", "label": "twin", "engine": "qv16",
+        assert vehicle(app, "KL-20") == {"id": "KL-20", "label": "twin", "engine": "tesk",
                                          "duty": "normal",
                                          "in_service": __import__("datetime").date(2026, 1, 5),
                                          "belt_history": "known"}
@@ -237,9 +237,9 @@ async def test_new_engine_profile_valid_and_rejected(tmp_path):
         app.screen.query_one("#f-drive", Select).value = "belt"
         await apply(pilot, closes=False)
         assert "labour hours" in problems_text(app) and "greater than 0" in problems_text(app)
-        fill(app, id="qv16", labour_hours="")
+        fill(app, id="tesk", labour_hours="")
         await apply(pilot, closes=False)
-        assert "already a profile 'qv16'" in problems_text(app)
+        assert "already a profile 'tesk'" in problems_text(app)
         fill(app, id="zz9", interval_distance="100 000", interval_months="60",
              parts="belt kit, pump")
         await apply(pilot)
@@ -254,12 +254,12 @@ async def test_edit_engine_profile_keeps_its_comments(tmp_path):
     app = make_app(copy_example(tmp_path))
     async with app.run_test(size=SMALL) as pilot:
         await opened(pilot)
-        await open_form(pilot, "p", pick="qv16")
+        await open_form(pilot, "p", pick="tesk")
         assert app.screen.query_one("#f-id").disabled
         fill(app, labour_hours="4", interval_months="0")
         await apply(pilot, closes=False)
         assert "interval, months: interval_months must be greater than 0" in problems_text(app)
         fill(app, interval_months="72")
         await apply(pilot)
-        assert tomllib.loads(app.session.text)["engines"]["qv16"]["labour_hours"] == 4.0
+        assert tomllib.loads(app.session.text)["engines"]["tesk"]["labour_hours"] == 4.0
         assert "failure_cost = 3900.0              # head repair estimate" in app.session.text

@@ -90,9 +90,17 @@ async def test_a_second_window_on_the_same_file_asks_who_has_it(tmp_path, monkey
         async with second.run_test(size=SMALL) as two:
             await asked(two)
             words = " ".join(text_of(second.screen.query_one(".intro")).split())
-            who = f"{inuse.this_user()}@{inuse.this_host()} (process {os.getpid()})"
-            assert f"is open in another beltplan window: {who}" in words
-            assert "since 10:15, 12 minutes ago" in words  # 09:15 UTC at UTC+1, 12 min later
+            # One sentence: who, which file, since when (09:15 UTC at UTC+1, 12 min later),
+            # where; then the question about this window's changes.
+            assert (f"{inuse.this_user()} has had {path} open in another beltplan window since "
+                    f"10:15, 12 minutes ago (on {inuse.this_host()}, process {os.getpid()}).") \
+                in words
+            assert words.endswith("What should happen to the changes you make in this window?")
+            labels = [str(b.label) for b in second.screen.query("Button")]
+            assert labels == [
+                "Look only: my changes stay here, the file is not written",
+                "Edit here: my saves go to the file, theirs are refused",
+                "Leave it to them: close beltplan now"]
             assert "another computer" not in words
             assert second.screen.focused.id == "ask-read-only"  # the default
             assert [b.id for b in second.screen.query("Button")] == \
@@ -230,7 +238,8 @@ async def test_quit_from_the_question_leaves_the_other_windows_marker(tmp_path):
     async with app.run_test(size=SMALL) as pilot:
         await asked(pilot)
         words = " ".join(text_of(app.screen.query_one(".intro")).split())
-        assert "ben@office-laptop" in words and "another computer" in words
+        assert "ben has had" in words and "(on office-laptop," in words
+        assert "another computer" in words
         await pilot.click("#ask-quit")
         await until(pilot, lambda: not app.is_running, what="exit")
     assert marker_of(path).read_bytes() == before
@@ -292,7 +301,7 @@ async def test_reading_again_after_the_other_window_closed_gives_write_access(tm
     app = app_on(path)
     async with app.run_test(size=SMALL) as pilot:
         await asked(pilot)
-        assert app.screen.query_one(".panel").border_subtitle == "esc: open read-only"
+        assert app.screen.query_one(".panel").border_subtitle == "esc: look only"
         await pilot.press("escape")  # the safe answer
         await until(pilot, lambda: screen_name(app) == "MainScreen")
         assert app.read_only

@@ -136,7 +136,7 @@ async def test_a_good_file_is_read_in_a_worker_behind_a_live_loading_view(held_r
 @sync
 async def test_a_bad_file_read_in_the_worker_opens_the_error_view(tmp_path, held_read):
     path = copy_example(tmp_path)
-    path.write_text(path.read_text().replace('engine = "nk12"', 'engine = "nk21"', 1))
+    path.write_text(path.read_text().replace('engine = "plim"', 'engine = "plimm"', 1))
     app = make_app(path)
     async with app.run_test(size=SMALL) as pilot:
         await until(pilot, lambda: held_read.threads, what="the read to start")
@@ -144,7 +144,7 @@ async def test_a_bad_file_read_in_the_worker_opens_the_error_view(tmp_path, held
         held_read.release.set()
         await until(pilot, lambda: screen_name(app) == "ErrorScreen", what="the error view")
         words = " ".join(text_of(app.screen.query_one("#e-problems")).split())
-        assert "field engine" in words and "did you mean 'nk12'?" in words
+        assert "field engine" in words and "did you mean 'plim'?" in words
         assert app.is_running
 
 
@@ -171,14 +171,14 @@ async def test_a_newer_read_wins_over_an_older_one(tmp_path, held_read):
     app = make_app(path)
     async with app.run_test(size=SMALL) as pilot:
         await until(pilot, lambda: held_read.threads, what="the first read")
-        path.write_text(path.read_text().replace('name = "Kestrel Lane Couriers"',
-                                                 'name = "Kestrel Lane Couriers Ltd"'))
+        path.write_text(path.read_text().replace('name = "Pellory Lane Couriers"',
+                                                 'name = "Pellory Lane Couriers Ltd"'))
         await pilot.press("ctrl+r")
         await until(pilot, lambda: len(held_read.threads) == 2, what="the second read")
         held_read.release.set()
         await until(pilot, lambda: screen_name(app) == "MainScreen", what="the list")
         await until(pilot, lambda: not app.reading)
-        assert app.session.name == "Kestrel Lane Couriers Ltd"  # the older read said "Couriers"
+        assert app.session.name == "Pellory Lane Couriers Ltd"  # the older read said "Couriers"
 
 
 @sync

@@ -83,7 +83,7 @@ def test_reading_form_with_a_rejected_reading(snap_compare, fleet):
 
 
 def test_error_view(snap_compare, fleet):
-    fleet.write_text(fleet.read_text().replace('engine = "nk12"', 'engine = "nk21"', 1)
+    fleet.write_text(fleet.read_text().replace('engine = "plim"', 'engine = "plimm"', 1)
                      .replace('duty = "severe"', 'dutty = "severe"', 1))
     assert snap_compare(make_app(fleet), terminal_size=SMALL, run_before=settle())
 

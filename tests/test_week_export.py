@@ -257,7 +257,7 @@ def test_markdown_job_sheets(week):
     sheets = text.split("## Job sheets", 1)[1].split("\n---\n")
     assert len(sheets) == len(week.bookings) == 4
     g1 = next(s for s in sheets if "### G-01" in s)
-    assert "**Engine:** K4 1.6 petrol, dry belt (k4)" in g1
+    assert "**Engine:** K4 1.6 petrol, dry belt (invented) (k4)" in g1
     assert "**Interval in force:** 100,000 km or 60 months, whichever comes first" in g1
     assert "**Reason:** overdue: age limit decides: 60 months from 2018-01-01" in g1
     assert "**Parts:** belt kit K4, water pump K4 (cost 210.00 EUR)" in g1

@@ -20,11 +20,15 @@ from planner.risk import ORDERS, assess_fleet_plan
 from planner.units import distance_factor
 
 FORMATS = ("table", "csv", "json", "markdown")
+# The same scheme as the UI's (planner/tui/look.py): tags with their own background for the
+# statuses that need a job now, a petrol blue for the warning band, no colour for "ok"; readable
+# on dark and light terminals, and the word says it without colour.
 STATUS_STYLE = {
-    "overdue": "bold red", "no-record": "bold magenta", "near-limit": "yellow",
-    "ok": "green", "on-condition": "cyan",
+    "overdue": "bold #ffffff on #a8325f", "no-record": "bold #ffffff on #5646a8",
+    "near-limit": "bold #3d8fd1", "ok": "", "on-condition": "italic #4f9a94",
 }
-CONSEQUENCE_STYLE = {"engine-damage": "red", "unverified": "magenta", "breakdown": "yellow"}
+CONSEQUENCE_STYLE = {"engine-damage": "bold #c9622a", "unverified": "#9a6fd0",
+                     "breakdown": "#a08a5a"}
 
 
 def register(sub: argparse._SubParsersAction) -> None:

@@ -12,6 +12,9 @@ from collections.abc import Callable
 from typing import TYPE_CHECKING
 
 from rich.text import Text
+from textual.app import ComposeResult
+from textual.containers import Vertical
+from textual.widgets import Button, Static
 
 from planner import inuse
 from planner.inuse import Claim, Holder, Unmarked
@@ -27,11 +30,19 @@ Marked = Claim | Holder | Unmarked | None  # None: no marker wanted (or the file
 
 
 class InUseDialog(AskDialog):
-    """The question when another window has the file: escape means the safe answer."""
+    """The question when another window has the file: one sentence saying who has it and since
+    when, then the choices one under another, each saying what happens to this window's edits.
+    Escape means the safe answer (look only)."""
 
-    def on_mount(self) -> None:
-        super().on_mount()
-        self.query_one(".panel").border_subtitle = "esc: open read-only"
+    def compose(self) -> ComposeResult:
+        with Vertical(classes="panel -narrow -in-use") as panel:
+            panel.border_title = self.title_words
+            panel.border_subtitle = "esc: look only"
+            yield Static(self.question, classes="intro", markup=False)
+            with Vertical(classes="choices"):
+                for ident, words, variant in self.answers:
+                    yield Button(words, id=f"ask-{ident}", variant=variant,  # type: ignore[arg-type]
+                                 compact=True)
 
 
 class InUseActions:
@@ -126,29 +137,29 @@ class InUseActions:
 
     def _ask_in_use(self: BeltplanApp, held: Holder) -> None:
         path = self.session.path
-        question = Text(f"{path} is open in another beltplan window:\n\n", style="")
-        question.append(f"  {held.who()}\n  since {held.since(clock.utc_now())}\n\n")
+        rec = held.record
+        question = Text(f"{rec.user} has had {path} open in another beltplan window since "
+                        f"{held.since(clock.utc_now())} (on {rec.host}, process {rec.pid}).",
+                        style="")
         if not held.same_host:
-            question.append("That window is on another computer, so this one cannot check "
-                            "whether it is still running.\n\n")
-        question.append("Read-only: look and try edits; saving is refused, and your version "
-                        "can be kept as a copy beside the file. Open anyway: this window is "
-                        "marked as the one editing; if both windows save, the second save is "
-                        "refused, so nothing is lost.")
+            question.append(" That window is on another computer, so this one cannot check "
+                            "whether it is still running.")
+        question.append("\n\nWhat should happen to the changes you make in this window?")
 
         def done(answer: str | None) -> None:
             if answer == "anyway":
                 self.take_over_in_background()
             elif answer == "quit":
                 self.exit()
-            else:  # read-only, esc or a click beside the panel: the safe choice
+            else:  # look only, esc or a click beside the panel: the safe choice
                 self.say(f"Opened {path} read-only: {held.who()} has it open.")
 
         self.last_message = f"{path} is open in {held.who()}."  # the dialog says so
-        self.push_screen(InUseDialog("Open in another window", question,
-                                     [("read-only", "Open read-only", "primary"),
-                                      ("anyway", "Open anyway", "warning"),
-                                      ("quit", "Quit", "default")]), done)
+        self.push_screen(InUseDialog("Already open elsewhere", question, [
+            ("read-only", "Look only: my changes stay here, the file is not written", "primary"),
+            ("anyway", "Edit here: my saves go to the file, theirs are refused", "warning"),
+            ("quit", "Leave it to them: close beltplan now", "default"),
+        ]), done)
 
     def take_over_in_background(self: BeltplanApp, then_save: bool = False,
                                 then_quit: bool = False) -> None:

@@ -163,7 +163,7 @@ def engine_form(session: Session, profile_id: str | None) -> FormSpec:
     unit = session.fleet.unit
     profile: EngineProfile | None = session.fleet.engines.get(profile_id) if profile_id else None
     fields = [F("id", "profile id", "text", profile_id, required=True, disabled=profile_id
-                is not None, help="" if profile_id else "short, e.g. qv16; vehicles name it "
+                is not None, help="" if profile_id else "short, e.g. tesk; vehicles name it "
                 "in engine = \"…\"")]
     for name, label, kind in ENGINE_FIELDS:
         value = getattr(profile, name) if profile is not None else None

@@ -18,18 +18,27 @@ STYLES = Path(__file__).resolve().parent
 STATUS_SYMBOL = {
     "overdue": "✗", "no-record": "?", "near-limit": "!", "ok": "✓", "on-condition": "~",
 }
+# The status colours are beltplan's own "workshop tag" scheme, not a traffic light: the two
+# statuses that need a job now are filled tags (raspberry, indigo) in light bold letters, the
+# warning band is a petrol blue, a drive with no interval is teal, and "ok" carries no colour at
+# all. Every tag has its own background and every plain colour has a contrast of at least 3:1
+# on the theme's background and on white (tests/test_look.py), and the symbol and word say it
+# all without colour.
 STATUS_STYLE = {
-    "overdue": Style(color="#ff6a4d", bold=True),
-    "no-record": Style(color="#d58cf0", bold=True),
-    "near-limit": Style(color="#f0c040"),
-    "ok": Style(color="#8cc46a"),
-    "on-condition": Style(color="#8fb3d9"),
+    "overdue": Style(color="#ffffff", bgcolor="#a8325f", bold=True),
+    "no-record": Style(color="#ffffff", bgcolor="#5646a8", bold=True),
+    "near-limit": Style(color="#3d8fd1", bold=True),
+    "ok": Style(),
+    "on-condition": Style(color="#4f9a94", italic=True),
 }
+# Marks drawn in a status's colour (the life bar): a tag's background, else its letters' colour.
+STATUS_INK = {status: Style(color=style.bgcolor or style.color)
+              for status, style in STATUS_STYLE.items()}
 CONSEQUENCE_SYMBOL = {"engine-damage": "◆", "unverified": "◇", "breakdown": "·"}
 CONSEQUENCE_STYLE = {
-    "engine-damage": Style(color="#ff8a5c"),
-    "unverified": Style(color="#d58cf0"),
-    "breakdown": Style(color="#d9c08a"),
+    "engine-damage": Style(color="#c9622a", bold=True),
+    "unverified": Style(color="#9a6fd0"),
+    "breakdown": Style(color="#a08a5a"),
 }
 WHAT_IT_MEANS = {
     "overdue": "past a limit: replace now; it can stop the engine without warning",

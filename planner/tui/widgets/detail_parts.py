@@ -30,6 +30,7 @@ from planner.risk import REQUIRED_STATUSES
 from planner.tui.look import (
     BOLD,
     DIM,
+    STATUS_INK,
     STATUS_STYLE,
     WHAT_IT_MEANS,
     consequence_text,
@@ -170,7 +171,7 @@ def limits(plan: VehiclePlan, unit: str, as_of: dt.date) -> RenderableType:
 
 
 def life(plan: VehiclePlan) -> Text:
-    return life_bar(plan.life_used, style=STATUS_STYLE.get(plan.status.value, ""))
+    return life_bar(plan.life_used, style=STATUS_INK.get(plan.status.value, ""))
 
 
 def odometer(plan: VehiclePlan, unit: str, as_of: dt.date, width: int) -> Text:
