@@ -205,7 +205,7 @@ def test_detail_leads_with_replace_now_and_labels_the_figures(courier_assessment
     p = next(p for p in a.plans if p.id == "KL-01")
     todo = rendered(detail_parts.what_to_do(p))
     assert todo.startswith("Replace now")
-    # KL-01's engine is an interference engine (qv16): off the road, not "use it less".
+    # KL-01's engine is an interference engine (tesk): off the road, not "use it less".
     assert "off the road" in todo and "to a minimum" not in todo
     rec = export.assessment_records(a)[[q.id for q in a.plans].index("KL-01")]
     shown = rendered(detail_parts.risk(rec, a.model.describe()))
@@ -215,8 +215,8 @@ def test_detail_leads_with_replace_now_and_labels_the_figures(courier_assessment
 def test_week_totals_split_required_jobs_from_risk_removed(courier_week):
     w = courier_week
     # Courier example, Fri 2026-12-04: required now (overdue or no record) KL-01, KL-02, KL-03
-    # (qv16: 3.5 h x 68 + 260 = 498 each) and KL-07 (nk12: 2.5 h x 68 + 180 = 350):
-    # 3 x 498 + 350 = 1,844. Near the limit: KL-16, KL-15 (498 each), KL-10 (wt10: 6 h x 68
+    # (tesk: 3.5 h x 68 + 260 = 498 each) and KL-07 (plim: 2.5 h x 68 + 180 = 350):
+    # 3 x 498 + 350 = 1,844. Near the limit: KL-16, KL-15 (498 each), KL-10 (odra: 6 h x 68
     # + 320 = 728), KL-09, KL-08 (350 each): 2,424. Together 4,268, the week's total.
     assert sorted(w.required_jobs) == ["KL-01", "KL-02", "KL-03", "KL-07"]
     assert w.required_cost == pytest.approx(1844.0)
@@ -304,7 +304,7 @@ def test_json_keeps_full_precision_of_tiny_probabilities(capsys, tmp_path):
 [[vehicles]]
 id = "NEW-1"
 label = "new belt"
-engine = "nk12"
+engine = "plim"
 in_service = 2020-01-01
 readings = [{ date = 2026-11-01, odometer = 60000 }, { date = 2026-12-01, odometer = 60600 }]
 [[vehicles.belt_jobs]]
@@ -324,13 +324,16 @@ reason = "scheduled"
     sf = stats.weibull_min(a.model.beta, scale=a.model.eta).sf
     p = next(q for q in a.plans if q.id == "NEW-1")
     rate = p.usage.daily_distance
-    u_later = max((p.usage.est_odometer + 90 * rate - 60500) / 90000,
+    # Profile plim: 91,300 km or 62 months (2026-11-28 + 62 months = 2032-01-28).
+    u_later = max((p.usage.est_odometer + 90 * rate - 60500) / 91300,
                   (FRI + dt.timedelta(days=90) - dt.date(2026, 11, 28)).days
-                  / (dt.date(2031, 11, 28) - dt.date(2026, 11, 28)).days)
+                  / (dt.date(2032, 1, 28) - dt.date(2026, 11, 28)).days)
     expected = 1 - sf(u_later) / sf(r.life_used)
     assert 0 < expected < 1e-6
     assert rec["p_fail_horizon"] == pytest.approx(expected, rel=1e-9)
-    assert rec["expected_loss"] == pytest.approx(expected * 450.0, rel=1e-9)  # breakdown_cost
+    # A non-interference engine: the fleet's breakdown_cost (450) applies, not the profile's
+    # failure_cost (the engine repair figure).
+    assert rec["expected_loss"] == pytest.approx(expected * 450.0, rel=1e-9)
 
 
 # ---------------------------------------------------------------- wording
