@@ -341,9 +341,9 @@ def test_usage_rate_matches_a_reference_weighted_fit():
 
 def test_an_old_value_counts_less_but_still_counts():
     # Two recent values 183 days apart at 18,250 km (99.7 km/day), and the 2018 and 2019 values:
-    # the old 365-day window dropped those; now the 2019 one weighs 2^(-2526/180), about 6e-5
-    # of the latest (the 2018 one less), so they pull the rate only a little, and downwards: they
-    # lie below the recent line extended back (5,000 km in 2019 against about -640,000).
+    # the old 365-day window dropped those; now the 2019 one weighs 2^(-2891/180), about 1.5e-5
+    # of the latest (the 2018 one less), so they pull the rate only a little, and down: they lie
+    # above the recent line extended back (5,000 km in 2019 against about -170,000).
     fleet = make_fleet("""
         [[vehicles]]
         id = "W"
