@@ -261,7 +261,7 @@ ROUNDING = """
 def test_a_distance_due_date_is_the_first_day_the_limit_is_reached():
     # Three values on one line of 100 km/day (365 days x 100 = 36,500; 330 x 100 = 33,000), so
     # any weights give that line. Due at 23,500 + 100,050 = 123,550; on 2026-12-07 the estimate
-    # is 94,000, 29,550 left = 295.5 days: reached during the 296th day -> due AS_OF + 296.
+    # is 94,000, 29,550 left = 295.5 days: the first whole day at or past it -> AS_OF + 296.
     due = AS_OF + dt.timedelta(days=296)
     p = plan_one(ROUNDING)
     assert p.usage.daily_distance == pytest.approx(100.0, rel=1e-12)

@@ -38,7 +38,8 @@ async def test_open_shows_every_vehicle_in_triage_order_with_a_summary():
         assert listed_ids(app) == TRIAGE_IDS  # the engine's order, untouched
         summary = text_of(app.screen.query_one("#summary"))
         assert "Plan date 2026-12-07" in summary
-        for words in ("4 overdue", "1 no-record", "4 near-limit", "5 ok", "2 on-condition"):
+        # KL-05 is near-limit: due by distance on 2027-02-01, 56 days ahead (<= 60).
+        for words in ("4 overdue", "1 no-record", "5 near-limit", "4 ok", "2 on-condition"):
             assert words in summary
         # Status and consequence read as words and symbols, not only colours.
         table = app.main_screen().table
@@ -86,8 +87,7 @@ async def test_filter_by_status_and_consequence():
         await pilot.click("#f-action")
         await until(pilot, lambda: screen_name(app) == "MainScreen")
         assert listed_ids(app) == [i for i in TRIAGE_IDS if i not in
-                                   ("KL-05", "KL-04", "KL-06", "KL-14", "KL-11", "KL-12",
-                                    "KL-13")]
+                                   ("KL-04", "KL-06", "KL-14", "KL-11", "KL-12", "KL-13")]
         await pilot.press("c")
         assert listed_ids(app) == TRIAGE_IDS
 
@@ -154,7 +154,9 @@ async def test_detail_view_explains_the_most_urgent_vehicle():
         assert "km/day" in body["d-install"] and "est. odometer" in body["d-install"]
         assert "186,410 km" in body["d-limits"] and "◀ decides" in body["d-limits"]
         assert "2028-01-16" in body["d-limits"]
-        assert "144 % used" in body["d-life"]
+        # Est. 224,470 km (fitted line 223,070 on 2026-11-27 + 10 days x 140.0 km/day):
+        # (224,470 - 96,410) / 90,000 = 142 %.
+        assert "142 % used" in body["d-life"]
         assert "●" in body["d-odometer"] and "○" in body["d-odometer"]
         assert "assumed" in body["d-risk"]  # the risk model's assumptions go with the figure
         assert "severe-service interval is in force" in body["d-notes"]
