@@ -472,9 +472,11 @@ def _deciding_note(limit: Limit, status: Status, spec: Spec, install: Install, d
     if limit is Limit.TIME:
         what = f"age limit decides: {spec.interval_months} months from {install.date} -> {due}"
     else:
-        how = "between two recorded values" if within_records else "projected"
         what = (f"distance limit decides: {spec.interval_distance:,.0f} {unit} from "
-                f"{install.odometer:,.0f} {unit} -> {how} {due}")
+                f"{install.odometer:,.0f} {unit} -> ")
+        if within_records:  # always overdue: a recorded value is past the limit
+            return what + f"reached {due}, between two recorded values"
+        what += f"projected {due}"
     if status is Status.OVERDUE:
         return what + " (reached)"
     return what + f"; {remaining:,.0f} {unit} left"

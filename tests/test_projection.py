@@ -242,6 +242,7 @@ def test_a_limit_passed_long_ago_is_dated_between_the_values_around_it():
     assert p.due_date == dt.date(2015, 11, 1)
     assert p.deciding_limit is Limit.DISTANCE
     assert p.status is Status.OVERDUE
+    assert p.notes[0].endswith("reached 2015-11-01, between two recorded values")
 
 
 # ------------------------------------------------------------------------------------------
