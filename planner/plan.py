@@ -235,11 +235,12 @@ def weighted_fit(points: list[tuple[dt.date, float]],
     # One pass (this runs for every vehicle), West's weighted update of the means and the
     # co-moments, offsets from the latest point: stable where the textbook sums cancel.
     last_day, last_odo = points[-1][0].toordinal(), points[-1][1]
+    decay = math.log(2.0) / half_life  # 2^(x/h) = e^(x ln2/h)
     sw = mx = my = sxx = sxy = 0.0
     for day, odo in points:
         x = float(day.toordinal() - last_day)
         y = odo - last_odo
-        w = 2.0 ** (x / half_life)
+        w = math.exp(x * decay)
         sw += w
         dx = x - mx
         mx += dx * w / sw
