@@ -31,7 +31,7 @@ from planner.fleet import (
 RATE_HALF_LIFE_DAYS = 180
 RATE_MIN_SPAN_DAYS = 14
 STALE_READING_DAYS = 90
-MAX_PROJECTION_DAYS = 36525
+MAX_PROJECTION_DAYS = 36525  # a distance due date beyond a century after the fitting: none
 # Distances are compared with a tolerance of a millionth of the interval (0.1 km on 100,000 km):
 # far below an odometer's last digit, far above floating-point error, and the same share in
 # miles and km, so a fleet converted between units gets the same statuses and dates.
@@ -288,7 +288,7 @@ def distance_tolerance(spec: Spec) -> float:
 def distance_due_date(vehicle: Vehicle, install: Install, use: Usage, due_odometer: float,
                       tolerance: float, as_of: dt.date) -> dt.date | None:
     """The first day on which the distance limit counts as reached, or None (no usage data, or
-    not within a century of the latest value). Depends on the records alone.
+    not within a century of the belt's fitting). Depends on the records alone.
 
     Passed within the records: interpolated between the two values around it, never projected
     backwards. Beyond them: the first day the projection (`Usage.odometer_on`) reaches it.
@@ -305,7 +305,9 @@ def distance_due_date(vehicle: Vehicle, install: Install, use: Usage, due_odomet
     if not use.daily_distance or use.line_odometer is None:
         return None
     days = (target - use.line_odometer) / use.daily_distance
-    if days >= MAX_PROJECTION_DAYS:
+    # A century after the fitting means "not by distance" (a parked vehicle: the age limit
+    # comes first). Counted from the fitting, which no reading moves.
+    if (last - install.date).days + days >= MAX_PROJECTION_DAYS:
         return None
     line, rate, floor = use.line_odometer, use.daily_distance, use.last_odometer
 
