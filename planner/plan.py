@@ -324,6 +324,14 @@ def distance_due_date(vehicle: Vehicle, install: Install, use: Usage, due_odomet
     return last + dt.timedelta(days=k)
 
 
+def distance_limit_on_record(plan: VehiclePlan) -> bool:
+    """Whether a recorded odometer value is already at or past the distance limit (its due date
+    then lies between two recorded values, not in a projection)."""
+    last, due = plan.usage.last_odometer, plan.due_odometer
+    return (last is not None and due is not None
+            and last >= due - distance_tolerance(plan.spec))
+
+
 def _passed_between(points: list[tuple[dt.date, float]], install: Install,
                     target: float) -> dt.date:
     """The first day the straight line between the two values around `target` reaches it."""
@@ -450,9 +458,9 @@ def plan_vehicle(vehicle: Vehicle, fleet: Fleet, as_of: dt.date,
     else:
         status = Status.OK
 
+    on_record = use.last_odometer is not None and use.last_odometer >= due_odometer - tolerance
     notes.insert(0, _deciding_note(deciding, status, spec, install, due, remaining, unit,
-                                   within_records=use.last_date is not None
-                                   and due <= use.last_date))
+                                   within_records=on_record))
     if status is Status.OVERDUE:
         notes.insert(1, "past its interval: treat it as at risk of a sudden engine stop and "
                      "book the job now")

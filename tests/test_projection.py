@@ -12,7 +12,14 @@ from hypothesis import HealthCheck, assume, example, given, settings
 from hypothesis import strategies as st
 
 from planner.fileio import parse_fleet_text
-from planner.plan import Limit, Status, plan_fleet, plan_vehicle, usage
+from planner.plan import (
+    Limit,
+    Status,
+    distance_limit_on_record,
+    plan_fleet,
+    plan_vehicle,
+    usage,
+)
 from tests.conftest import AS_OF, COURIER, GARAGE, make_fleet
 
 MI_TO_KM = 1.609344  # exactly (NIST SP 811, Appendix B: international mile, 1959)
@@ -385,3 +392,27 @@ def test_the_same_fleet_in_miles_and_in_km_plans_the_same(data):
     assert b.due_odometer == pytest.approx(a.due_odometer * MI_TO_KM, rel=1e-12)
     assert math.isclose(b.distance_remaining, a.distance_remaining * MI_TO_KM,
                         rel_tol=1e-9, abs_tol=1e-6)
+
+
+def test_a_fitted_line_past_the_limit_is_a_projection_not_a_record():
+    # Use slowed down: 94,000 km by 2025-07-01, only 95,000 by 2025-12-01. The fitted line
+    # stands above the limit of 100,000 on the latest date (reference below), the readings do
+    # not: due on that latest date (the first day the estimate reaches the limit), overdue,
+    # and said to be a projection, never "between two recorded values".
+    body = """
+        [[vehicles]]
+        id = "SL"
+        engine = "belt"
+        in_service = 2025-01-01
+        readings = [{ date = 2025-07-01, odometer = 94000 }, { date = 2025-12-01, odometer = 95000 }]
+    """
+    x = np.array([-334.0, -153.0, 0.0])  # days before 2025-12-01
+    # Reference: numpy.polyfit with square-root weights: about 103,069 km on 2025-12-01.
+    _, on_last = np.polyfit(x, [0, 94000, 95000], 1, w=np.sqrt(2.0 ** (x / HALF_LIFE)))
+    assert on_last > 100000
+    p = plan_one(body, dt.date(2025, 12, 10))
+    assert p.distance_due_date == dt.date(2025, 12, 1)
+    assert p.status is Status.OVERDUE
+    assert not distance_limit_on_record(p)
+    assert "projected 2025-12-01" in p.notes[0]
+    assert "recorded values" not in p.notes[0]

@@ -17,7 +17,14 @@ from rich.text import Text
 
 from planner import export
 from planner.fleet import Fleet
-from planner.plan import IntervalBasis, Limit, Status, VehiclePlan, odometer_points
+from planner.plan import (
+    IntervalBasis,
+    Limit,
+    Status,
+    VehiclePlan,
+    distance_limit_on_record,
+    odometer_points,
+)
 from planner.tui.look import (
     BOLD,
     DIM,
@@ -149,9 +156,7 @@ def limits(plan: VehiclePlan, unit: str, as_of: dt.date) -> RenderableType:
     left = _km(plan.distance_remaining, unit)
     decides = {limit: "◀ decides" if plan.deciding_limit is limit else "" for limit in Limit}
     if plan.distance_due_date:  # passed between two recorded values, or a projection
-        last = plan.usage.last_date
-        dist_date += (" (on record)" if last and plan.distance_due_date <= last
-                      else " (projected)")
+        dist_date += " (on record)" if distance_limit_on_record(plan) else " (projected)"
     table.add_row("distance", _km(plan.due_odometer, unit), dist_date, left,
                   decides[Limit.DISTANCE])
     time_due = plan.time_due_date
