@@ -23,10 +23,19 @@ from planner.fleet import (
     Vehicle,
 )
 
-RATE_WINDOW_DAYS = 365
+# Usage: every dated odometer value counts, its weight halving every RATE_HALF_LIFE_DAYS back
+# from the latest one. Half a year follows a change of route or driver within a season, while a
+# year-old value still weighs a quarter, so one year's summer and winter use average out. The
+# weights hang on the records only, never on the planning date: a later planning date alone
+# moves no due date.
+RATE_HALF_LIFE_DAYS = 180
 RATE_MIN_SPAN_DAYS = 14
 STALE_READING_DAYS = 90
-MAX_PROJECTION_DAYS = 36525
+MAX_PROJECTION_DAYS = 36525  # a distance due date beyond a century after the fitting: none
+# Distances are compared with a tolerance of a millionth of the interval distance (0.1 km in
+# 100,000 km): far below an odometer's last digit, far above floating-point error, and the same share in
+# miles and km, so a fleet converted between units gets the same statuses and dates.
+DISTANCE_TOLERANCE = 1e-6
 
 
 class Status(StrEnum):
@@ -95,13 +104,29 @@ class Install:
 
 @dataclass(frozen=True)
 class Usage:
-    """Distance per day and the estimated odometer on the planning date."""
+    """Distance per day and the estimated odometer on the planning date.
+
+    The projection is a line through (`last_date`, `line_odometer`) rising `daily_distance` a
+    day (`odometer_on`); it starts from the fitted line's value on the latest date, or from the
+    latest value itself where that lies above the line."""
 
     daily_distance: float | None
     basis: str
     last_date: dt.date | None
     last_odometer: float | None
     est_odometer: float | None
+    # Where the projection stands on `last_date`: the fitted line's value, or the latest value
+    # where that is higher (and for the fleet default).
+    line_odometer: float | None = None
+
+    def odometer_on(self, day: dt.date) -> float | None:
+        """The projected odometer on `day` (on or after `last_date`)."""
+        if self.last_odometer is None or self.last_date is None:
+            return None
+        if self.daily_distance is None or self.line_odometer is None:
+            return self.last_odometer
+        line = self.line_odometer + self.daily_distance * (day - self.last_date).days
+        return max(line, self.last_odometer)
 
 
 @dataclass(frozen=True)
@@ -204,20 +229,30 @@ def odometer_points(vehicle: Vehicle, as_of: dt.date) -> list[tuple[dt.date, flo
     return sorted(p for p in points if p[0] <= as_of)
 
 
-def least_squares_slope(points: list[tuple[dt.date, float]]) -> float:
-    """Ordinary least-squares slope of odometer on day number (distance per day)."""
-    # One pass, offsets from the first point keep the sums small (this runs for every vehicle).
-    x0, y0 = points[0][0].toordinal(), points[0][1]
-    n = len(points)
-    sx = sy = sxx = sxy = 0.0
+def weighted_fit(points: list[tuple[dt.date, float]],
+                 half_life: float = RATE_HALF_LIFE_DAYS) -> tuple[float, float] | None:
+    """Weighted least-squares line of odometer on day: (distance per day, value on the latest
+    date), or None when the values fix no slope. Slope and intercept are both free; a value
+    `a` days before the latest weighs 2^(-a/half_life). `points` sorted by date."""
+    # One pass (this runs for every vehicle), West's weighted update of the means and the
+    # co-moments, offsets from the latest point: stable where the textbook sums cancel.
+    last_day, last_odo = points[-1][0].toordinal(), points[-1][1]
+    decay = math.log(2.0) / half_life  # 2^(x/h) = e^(x ln2/h)
+    sw = mx = my = sxx = sxy = 0.0
     for day, odo in points:
-        x = day.toordinal() - x0
-        y = odo - y0
-        sx += x
-        sy += y
-        sxx += x * x
-        sxy += x * y
-    return (n * sxy - sx * sy) / (n * sxx - sx * sx)
+        x = float(day.toordinal() - last_day)
+        y = odo - last_odo
+        w = math.exp(x * decay)
+        sw += w
+        dx = x - mx
+        mx += dx * w / sw
+        my += (y - my) * w / sw
+        sxx += w * dx * (x - mx)
+        sxy += w * dx * (y - my)
+    if not sxx > 0.0:
+        return None
+    slope = sxy / sxx
+    return slope, last_odo + my - slope * mx
 
 
 def _spans(points: list[tuple[dt.date, float]]) -> bool:
@@ -225,26 +260,101 @@ def _spans(points: list[tuple[dt.date, float]]) -> bool:
 
 
 def usage(vehicle: Vehicle, fleet: Fleet, as_of: dt.date) -> Usage:
-    """Usage rate and estimated odometer: recent window, else all values, else the default."""
+    """Usage rate and estimated odometer from the records alone (the planning date only picks
+    which records exist yet): a recency-weighted fit of every value, else the fleet default."""
     points = odometer_points(vehicle, as_of)
     if not points:
         return Usage(None, "not yet in service on the planning date", None, None, None)
-    recent = [p for p in points if (as_of - p[0]).days <= RATE_WINDOW_DAYS]
-    rate: float | None
-    if _spans(recent):
-        rate, basis = least_squares_slope(recent), f"least squares, {len(recent)} values " \
-            f"in the last {RATE_WINDOW_DAYS} days"
-    elif _spans(points):
-        rate, basis = least_squares_slope(points), f"least squares, all {len(points)} values"
-    elif fleet.fleet.default_daily_distance is not None:
-        rate, basis = fleet.fleet.default_daily_distance, "fleet default (too few readings)"
-    else:
-        rate, basis = None, "no usage data"
-    if rate is not None:
-        rate = max(rate, 0.0)
     last_date, last_odo = points[-1]
-    est = last_odo + (rate or 0.0) * (as_of - last_date).days
-    return Usage(rate, basis, last_date, last_odo, est)
+    fit = weighted_fit(points) if _spans(points) else None
+    rate: float | None
+    if fit is not None:
+        (rate, line), basis = fit, (f"fit of {len(points)} values, weight halving every "
+                                    f"{RATE_HALF_LIFE_DAYS} days back from {last_date}")
+    elif fleet.fleet.default_daily_distance is not None:
+        rate, line = fleet.fleet.default_daily_distance, last_odo
+        basis = "fleet default (too few readings)"
+    else:
+        rate, line, basis = None, None, "no usage data"
+    if rate is not None and rate < 0.0:  # odometers only go forward, so only by rounding
+        rate = 0.0
+    if line is not None:
+        # Never below what was read: where the latest value lies above the fitted line (use has
+        # picked up), the projection runs on from it at the fitted rate. Pausing until the line
+        # caught up would date a limit later than the records allow.
+        line = max(line, last_odo)
+    use = Usage(rate, basis, last_date, last_odo, None, line)
+    return Usage(rate, basis, last_date, last_odo, use.odometer_on(as_of), line)
+
+
+def distance_tolerance(spec: Spec) -> float:
+    """How close to a distance limit counts as at it (see DISTANCE_TOLERANCE)."""
+    return (spec.interval_distance or 0.0) * DISTANCE_TOLERANCE
+
+
+def distance_due_date(vehicle: Vehicle, install: Install, use: Usage, due_odometer: float,
+                      tolerance: float, as_of: dt.date) -> dt.date | None:
+    """The first day on which the distance limit counts as reached, or None (no usage data, or
+    not within a century of the belt's fitting). Depends on the records alone.
+
+    Passed within the records: interpolated between the two values around it, never projected
+    backwards. Beyond them: the first day the projection (`Usage.odometer_on`) reaches it.
+    Never before the belt was fitted nor before the vehicle entered service."""
+    target = due_odometer - tolerance
+    if use.last_date is None or use.last_odometer is None:
+        return None
+    if use.last_odometer >= target:
+        due = _passed_between(odometer_points(vehicle, as_of), install, target)
+        return max(due, install.date, vehicle.in_service)
+    last = use.last_date
+    if (use.odometer_on(last) or 0.0) >= target:  # the fitted line is past it already
+        return last
+    if not use.daily_distance or use.line_odometer is None:
+        return None
+    days = (target - use.line_odometer) / use.daily_distance
+    # A century after the fitting means "not by distance" (a parked vehicle: the age limit
+    # comes first). Counted from the fitting, which no reading moves.
+    if (last - install.date).days + days >= MAX_PROJECTION_DAYS:
+        return None
+    line, rate, floor = use.line_odometer, use.daily_distance, use.last_odometer
+
+    def reached(k: int) -> bool:  # the same arithmetic as Usage.odometer_on
+        return max(line + rate * k, floor) >= target
+
+    # Settle the rounding on the projection itself, so the status on a day and the due date
+    # agree to the last floating-point bit.
+    k = max(math.ceil(days), 1)
+    while k > 1 and reached(k - 1):
+        k -= 1
+    while not reached(k):
+        k += 1
+    return last + dt.timedelta(days=k)
+
+
+def distance_limit_on_record(plan: VehiclePlan) -> bool:
+    """Whether a recorded odometer value is already at or past the distance limit (its due date
+    then lies between two recorded values, not in a projection)."""
+    last, due = plan.usage.last_odometer, plan.due_odometer
+    return (last is not None and due is not None
+            and last >= due - distance_tolerance(plan.spec))
+
+
+def _passed_between(points: list[tuple[dt.date, float]], install: Install,
+                    target: float) -> dt.date:
+    """The first day the straight line between the two values around `target` reaches it."""
+    before = (install.date, install.odometer)
+    for point in points:
+        if point < before:
+            continue
+        if point[1] >= target:
+            (d0, y0), (d1, y1) = before, point
+            span = (d1 - d0).days
+            if span == 0 or y1 <= y0:
+                return d1
+            k = math.ceil((target - y0) / (y1 - y0) * span)
+            return d0 + dt.timedelta(days=min(max(k, 0), span))
+        before = point
+    return points[-1][0]  # not reached after all: cannot happen when called as above
 
 
 def add_months(day: dt.date, months: int) -> dt.date:
@@ -337,30 +447,27 @@ def plan_vehicle(vehicle: Vehicle, fleet: Fleet, as_of: dt.date,
     due_odometer = install.odometer + spec.interval_distance
     est = use.est_odometer if use.est_odometer is not None else install.odometer
     remaining = due_odometer - est
+    tolerance = distance_tolerance(spec)
     time_due = add_months(install.date, spec.interval_months)
-    distance_due: dt.date | None = None
-    if use.daily_distance:
-        # Floor: the day on which the limit is reached, never a day late. A projection past a
-        # century means "not by distance" (a parked vehicle), which the age limit overtakes.
-        days = remaining / use.daily_distance
-        if days < MAX_PROJECTION_DAYS:
-            distance_due = as_of + dt.timedelta(days=math.floor(days))
-    elif remaining <= 0:
-        distance_due = use.last_date
+    # Each due date is the first day its limit is reached; on and after it the belt is overdue.
+    distance_due = distance_due_date(vehicle, install, use, due_odometer, tolerance, as_of)
     if distance_due is not None and distance_due < time_due:
         due, deciding = distance_due, Limit.DISTANCE
     else:
         due, deciding = time_due, Limit.TIME
     days_left = (due - as_of).days
 
-    if remaining <= 0 or time_due <= as_of:
+    if due <= as_of or remaining <= tolerance:
         status = Status.OVERDUE
-    elif remaining <= fleet.fleet.near_limit_distance or days_left <= fleet.fleet.near_limit_days:
+    elif (remaining <= fleet.fleet.near_limit_distance + tolerance
+          or days_left <= fleet.fleet.near_limit_days):
         status = Status.NEAR_LIMIT
     else:
         status = Status.OK
 
-    notes.insert(0, _deciding_note(deciding, status, spec, install, due, remaining, unit))
+    on_record = use.last_odometer is not None and use.last_odometer >= due_odometer - tolerance
+    notes.insert(0, _deciding_note(deciding, status, spec, install, due, remaining, unit,
+                                   within_records=on_record))
     if status is Status.OVERDUE:
         notes.insert(1, "past its interval: treat it as at risk of a sudden engine stop and "
                      "book the job now")
@@ -379,12 +486,15 @@ def plan_vehicle(vehicle: Vehicle, fleet: Fleet, as_of: dt.date,
 
 
 def _deciding_note(limit: Limit, status: Status, spec: Spec, install: Install, due: dt.date,
-                   remaining: float, unit: str) -> str:
+                   remaining: float, unit: str, within_records: bool = False) -> str:
     if limit is Limit.TIME:
         what = f"age limit decides: {spec.interval_months} months from {install.date} -> {due}"
     else:
         what = (f"distance limit decides: {spec.interval_distance:,.0f} {unit} from "
-                f"{install.odometer:,.0f} {unit} -> projected {due}")
+                f"{install.odometer:,.0f} {unit} -> ")
+        if within_records:  # always overdue: a recorded value is past the limit
+            return what + f"reached {due}, between two recorded values"
+        what += f"projected {due}"
     if status is Status.OVERDUE:
         return what + " (reached)"
     return what + f"; {remaining:,.0f} {unit} left"

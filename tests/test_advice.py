@@ -176,9 +176,14 @@ def test_list_leads_overdue_and_no_record_rows_with_the_action(capsys):
         # Its probability is labelled as an extrapolation, and no small expected loss sits
         # beside it: the job is required.
         assert "extrap" in rows[vid] and "required" in rows[vid]
-    # KL-06 is ok and stays inside its interval over the 90-day horizon (due 2028-01-14 by
-    # distance, 27,883 km left at about 69 km a day: 90 days take about 6,200): a plain figure.
-    # KL-04 is ok too, but its age limit falls 87 days out, inside the horizon: labelled.
+    # A month on, KL-06 is ok and stays inside its interval over the 90-day horizon (27,611 km
+    # left, due 2027-11-08, 308 days out): a plain figure. KL-04 is ok too (5,812 km left, over
+    # the 5,000 km warning), but its limit is projected 79 days out, inside the horizon: the
+    # figure past that day is labelled.
+    later = cli(capsys, "list", str(COURIER), "--as-of", "2027-01-04", "-o", "-")
+    rows = {line.split()[0]: line for line in later.splitlines()
+            if line.strip().startswith("KL-")}
+    assert "ok" in rows["KL-06"].split() and "ok" in rows["KL-04"].split()
     assert "extrap" not in rows["KL-06"] and "extrap" in rows["KL-04"]
 
 

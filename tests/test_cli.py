@@ -57,9 +57,9 @@ def test_json_fields_are_exactly_the_documented_ones(capsys):
     kl01 = next(r for r in doc["vehicles"] if r["id"] == "KL-01")
     assert kl01["status"] == "overdue" and kl01["deciding_limit"] == "distance"
     assert isinstance(kl01["distance_remaining"], int)           # whole units
-    # ISO 8601, and before the planning date: the limit was passed (the exact day follows the
-    # usage projection)
-    assert dt.date.fromisoformat(kl01["due_date"]) < dt.date.fromisoformat(AS_OF)
+    # Severe limit 96,410 + 88,600 = 185,010, passed between 168,500 (2025-12-01) and 196,900
+    # (2026-06-01, 182 days on): 16,510 / 28,400 x 182 = 105.8 -> day 106 = 2026-03-17.
+    assert kl01["due_date"] == "2026-03-17"                      # ISO 8601
     chain = next(r for r in doc["vehicles"] if r["drive"] == "chain")
     assert chain["due_date"] is None and chain["p_fail_horizon"] is None   # unknowns are null
 

@@ -3,8 +3,8 @@
 from __future__ import annotations
 
 import datetime as dt
-import statistics
 
+import numpy as np
 from dateutil.relativedelta import relativedelta
 from hypothesis import given
 from hypothesis import strategies as st
@@ -46,12 +46,16 @@ def test_time_limit_decides_for_a_low_mileage_vehicle():
 
 
 def test_distance_limit_decides_for_a_high_mileage_vehicle():
-    # 33,000 km in 330 days = 100 km/day (by hand); est. on 2026-12-07 = 93,000 + 10 x 100.
+    # Three values on one line of 100 km/day (by hand: 36,500 km in 365 days, 33,000 in 330),
+    # so every weighting fits that line; est. on 2026-12-07 = 93,000 + 10 x 100. Due at
+    # 23,500 + 76,500 = 100,000: 6,000 km left = exactly 60 days.
     p = plan_one("""
         [[vehicles]]
         id = "B"
         engine = "belt"
-        in_service = 2024-01-01
+        interval_distance = 76500
+        in_service = 2025-01-01
+        in_service_odometer = 23500
         readings = [{ date = 2026-01-01, odometer = 60000 }, { date = 2026-11-27, odometer = 93000 }]
     """)
     assert abs(p.usage.daily_distance - 100.0) < 1e-9
@@ -60,7 +64,7 @@ def test_distance_limit_decides_for_a_high_mileage_vehicle():
     assert p.distance_due_date == AS_OF + dt.timedelta(days=60)
     assert p.deciding_limit is Limit.DISTANCE
     assert p.due_date == p.distance_due_date
-    assert p.time_due_date == dt.date(2029, 1, 1)
+    assert p.time_due_date == dt.date(2030, 1, 1)
 
 
 def test_overdue_when_either_limit_is_reached():
@@ -308,7 +312,7 @@ def test_add_months_matches_dateutil(start, months):
     assert add_months(start, months) == start + relativedelta(months=months)
 
 
-def test_usage_rate_matches_the_standard_library_regression():
+def test_usage_rate_matches_a_reference_weighted_fit():
     fleet = make_fleet("""
         [[vehicles]]
         id = "R"
@@ -324,14 +328,22 @@ def test_usage_rate_matches_the_standard_library_regression():
     """)
     v = fleet.vehicles[0]
     u = usage(v, fleet, AS_OF)
-    # Reference: statistics.linear_regression (Python standard library, ordinary least squares).
-    days = [r.date.toordinal() for r in v.readings]
-    ref = statistics.linear_regression(days, [r.odometer for r in v.readings]).slope
-    assert abs(u.daily_distance - ref) < 1e-9
-    assert "last 365 days" in u.basis
+    # Reference: numpy.polyfit with weights; numpy's w multiplies the unsquared residual, so the
+    # weights 2^(-age/180) go in as square roots (numpy.polyfit documentation). Every value
+    # counts, the in-service one of 2020 too (with a weight of about 2^-13).
+    days = [v.in_service.toordinal()] + [r.date.toordinal() for r in v.readings]
+    odos = [0.0] + [r.odometer for r in v.readings]
+    x = np.array(days, dtype=float) - days[-1]
+    slope, _ = np.polyfit(x, odos, 1, w=np.sqrt(2.0 ** (x / 180)))
+    assert abs(u.daily_distance - slope) < 1e-9
+    assert u.basis == "fit of 6 values, weight halving every 180 days back from 2026-11-30"
 
 
-def test_rate_window_drops_old_values_when_recent_ones_span_enough():
+def test_an_old_value_counts_less_but_still_counts():
+    # Two recent values 183 days apart at 18,250 km (99.7 km/day), and the 2018 and 2019 values:
+    # the old 365-day window dropped those; now the 2019 one weighs 2^(-2891/180), about 1.5e-5
+    # of the latest (the 2018 one less), so they pull the rate only a little, and down: they lie
+    # above the recent line extended back (5,000 km in 2019 against about -170,000).
     fleet = make_fleet("""
         [[vehicles]]
         id = "W"
@@ -344,7 +356,7 @@ def test_rate_window_drops_old_values_when_recent_ones_span_enough():
         ]
     """)
     u = usage(fleet.vehicles[0], fleet, AS_OF)
-    assert abs(u.daily_distance - 18250 / 183) < 1e-9  # only the two recent readings
+    assert 18250 / 183 - 5 < u.daily_distance < 18250 / 183
 
 
 def test_default_order_puts_engine_damage_first_within_a_status():

@@ -32,13 +32,14 @@ def test_default_assumptions_reproduce_the_share_failed_by_the_interval():
 
 
 def test_horizon_probability_matches_scipy_for_a_worked_vehicle():
-    # 100 km/day, belt at 60,000 of 100,000 km after 2 of 60 months: distance decides.
+    # Three values on one line (30,000 km a year), so any weights fit it: 60,000 / 730 km/day;
+    # belt at 60,000 of 100,000 km after 24 of 60 months: distance decides (in 487 days).
     fleet = make_fleet("""
         [[vehicles]]
         id = "V"
         engine = "belt"
         in_service = 2024-12-07
-        readings = [{ date = 2025-12-07, odometer = 23500 }, { date = 2026-12-07, odometer = 60000 }]
+        readings = [{ date = 2025-12-07, odometer = 30000 }, { date = 2026-12-07, odometer = 60000 }]
         [[vehicles.belt_jobs]]
         date = 2024-12-07
         odometer = 0
@@ -47,7 +48,7 @@ def test_horizon_probability_matches_scipy_for_a_worked_vehicle():
     p = plan_vehicle(fleet.vehicles[0], fleet, AS_OF)
     model = risk.risk_model(fleet, AS_OF)
     r = risk.assess(p, fleet, model, AS_OF)
-    rate = 36500 / 365
+    rate = 60000 / 730
     u_now = 60000 / 100000
     u_later = (60000 + 90 * rate) / 100000
     assert r.life_used == pytest.approx(u_now)

@@ -38,7 +38,8 @@ async def test_open_shows_every_vehicle_in_triage_order_with_a_summary():
         assert listed_ids(app) == TRIAGE_IDS  # the engine's order, untouched
         summary = text_of(app.screen.query_one("#summary"))
         assert "Plan date 2026-12-07" in summary
-        for words in ("4 overdue", "1 no-record", "4 near-limit", "5 ok", "2 on-condition"):
+        # KL-05 is near-limit: due by distance on 2027-02-01, 56 days ahead (<= 60).
+        for words in ("4 overdue", "1 no-record", "5 near-limit", "4 ok", "2 on-condition"):
             assert words in summary
         # Status and consequence read as words and symbols, not only colours.
         table = app.main_screen().table
@@ -90,8 +91,7 @@ async def test_filter_by_status_and_consequence():
         await pilot.click("#f-action")
         await until(pilot, lambda: screen_name(app) == "MainScreen")
         assert listed_ids(app) == [i for i in TRIAGE_IDS if i not in
-                                   ("KL-05", "KL-04", "KL-06", "KL-14", "KL-11", "KL-12",
-                                    "KL-13")]
+                                   ("KL-04", "KL-06", "KL-14", "KL-11", "KL-12", "KL-13")]
         await pilot.press("c")
         assert listed_ids(app) == TRIAGE_IDS
 
@@ -159,7 +159,9 @@ async def test_detail_view_explains_the_most_urgent_vehicle():
         # The severe limits: 96,410 + 88,600 = 185,010 km; 2023-01-16 + 58 months = 2027-11-16.
         assert "185,010 km" in body["d-limits"] and "◀ decides" in body["d-limits"]
         assert "2027-11-16" in body["d-limits"]
-        # 129,421 km run since the job (the estimate, 225,831 km, less 96,410) / 88,600 = 146 %.
+        # Est.: the latest value, 224,300 km on 2026-11-27 (above the fitted line's 223,070),
+        # + 10 days x 140.06 km/day (weighted fit; numpy.polyfit gives the same) = 225,701 km;
+        # (225,701 - 96,410) / 88,600 = 146 %.
         assert "146 % used" in body["d-life"]
         assert "●" in body["d-odometer"] and "○" in body["d-odometer"]
         assert "assumed" in body["d-risk"]  # the risk model's assumptions go with the figure

@@ -221,7 +221,8 @@ async def test_a_refused_move_shows_the_engines_reason_and_changes_nothing():
     with pytest.raises(PlannerError) as refusal:
         move(week, "MR-1077", wednesday, 1)
     reason = refusal.value.title
-    assert "0.5 h left" in reason
+    # Wednesday's bay 1 holds MR-1042 and MR-1131, 3 h each: 2 h of 8 left; MR-1077 needs 4.5 h.
+    assert "2 h left" in reason and "needs 4.5 h" in reason
     app = make_app(GARAGE, FRIDAY)
     async with app.run_test(size=SMALL) as pilot:
         await open_week(pilot)
@@ -252,15 +253,17 @@ async def test_a_refused_move_shows_the_engines_reason_and_changes_nothing():
 @sync
 async def test_keys_move_a_day_and_a_bay_and_undo_takes_moves_back():
     week = expected()
-    thursday, friday = dt.date(2026, 12, 10), dt.date(2026, 12, 11)
-    steps = [move(week, "MR-1131", thursday, 2)]
+    # MR-1131 (3 h) is booked Wed 2026-12-09 in bay 1: to bay 2 (3.5 h free), then a day later
+    # twice (bay 2 is free on Thursday and Friday).
+    wednesday, thursday, friday = (dt.date(2026, 12, d) for d in (9, 10, 11))
+    steps = [move(week, "MR-1131", wednesday, 2)]
+    steps.append(move(steps[-1], "MR-1131", thursday, 2))
     steps.append(move(steps[-1], "MR-1131", friday, 2))
-    steps.append(move(steps[-1], "MR-1131", friday, 1))
     app = make_app(GARAGE, FRIDAY)
     async with app.run_test(size=SMALL) as pilot:
         await open_week(pilot)
         await highlight(pilot, "MR-1131")
-        for key, want in zip(("shift+down", "shift+down", "b"), steps, strict=True):
+        for key, want in zip(("b", "shift+down", "shift+down"), steps, strict=True):
             await pilot.press(key)
             await pilot.pause()
             assert booked(app.week_state().plan()) == booked(want), key
@@ -272,7 +275,7 @@ async def test_keys_move_a_day_and_a_bay_and_undo_takes_moves_back():
         await pilot.press("u")
         await pilot.pause()
         assert booked(app.week_state().plan()) == booked(steps[1])
-        assert app.last_message == "Move undone: MR-1131 to bay 1 on 2026-12-11."
+        assert app.last_message == "Move undone: MR-1131 to bay 2 on 2026-12-11."
         await pilot.press("u", "u")
         await pilot.pause()
         assert booked(app.week_state().plan()) == booked(week)
@@ -286,7 +289,7 @@ async def test_moves_stay_for_the_session_and_go_when_the_planning_date_changes(
     async with app.run_test(size=SMALL, notifications=True) as pilot:
         await open_week(pilot)
         await highlight(pilot, "MR-1131")
-        await pilot.press("shift+down")
+        await pilot.press("b")  # Wed bay 1 -> bay 2 (3.5 h free for its 3 h)
         await pilot.press("escape")
         await until(pilot, lambda: screen_name(app) == "MainScreen")
         await pilot.press("w")
@@ -350,8 +353,9 @@ async def export_week(pilot, kind, target):
 async def test_export_writes_what_beltplan_week_writes_moves_included(tmp_path, monkeypatch):
     monkeypatch.setattr(clock, "utc_now", lambda: STAMP)
     path = garage_copy(tmp_path)
-    thursday = dt.date(2026, 12, 10)
-    want = move(expected(path), "MR-1131", thursday, 2)
+    # MR-1131 (3 h) is booked Wed 2026-12-09 in bay 1; bay 2 has 3.5 h free that day.
+    wednesday = dt.date(2026, 12, 9)
+    want = move(expected(path), "MR-1131", wednesday, 2)
     writers = {
         "jobs": week_export.to_csv_text(want, "jobs"),
         "parts": week_export.to_csv_text(want, "parts"),
@@ -366,7 +370,7 @@ async def test_export_writes_what_beltplan_week_writes_moves_included(tmp_path, 
     async with app.run_test(size=SMALL) as pilot:
         await open_week(pilot)
         await highlight(pilot, "MR-1131")
-        await pilot.press("shift+down")
+        await pilot.press("b")
         await pilot.pause()
         assert booked(app.week_state().plan()) == booked(want)
         for kind, text in writers.items():

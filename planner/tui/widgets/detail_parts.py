@@ -24,6 +24,7 @@ from planner.plan import (
     Limit,
     Status,
     VehiclePlan,
+    distance_limit_on_record,
     odometer_points,
 )
 from planner.risk import REQUIRED_STATUSES
@@ -161,8 +162,10 @@ def limits(plan: VehiclePlan, unit: str, as_of: dt.date) -> RenderableType:
     dist_date = plan.distance_due_date.isoformat() if plan.distance_due_date else "–"
     left = _km(plan.distance_remaining, unit)
     decides = {limit: "◀ decides" if plan.deciding_limit is limit else "" for limit in Limit}
-    table.add_row("distance", _km(plan.due_odometer, unit), dist_date + " (projected)"
-                  if plan.distance_due_date else dist_date, left, decides[Limit.DISTANCE])
+    if plan.distance_due_date:  # passed between two recorded values, or a projection
+        dist_date += " (on record)" if distance_limit_on_record(plan) else " (projected)"
+    table.add_row("distance", _km(plan.due_odometer, unit), dist_date, left,
+                  decides[Limit.DISTANCE])
     time_due = plan.time_due_date
     days = f"{(time_due - as_of).days:,} days" if time_due else "–"
     table.add_row("age", f"{plan.spec.interval_months} months",
