@@ -33,8 +33,9 @@ RATE_MIN_SPAN_DAYS = 14
 STALE_READING_DAYS = 90
 MAX_PROJECTION_DAYS = 36525  # a distance due date beyond a century after the fitting: none
 # Distances are compared with a tolerance of a millionth of the interval distance (0.1 km in
-# 100,000 km): far below an odometer's last digit, far above floating-point error, and the same share in
-# miles and km, so a fleet converted between units gets the same statuses and dates.
+# 100,000 km): far below an odometer's last digit, far above floating-point error, and the
+# same share in miles and km, so a fleet converted between units gets the same statuses and
+# dates.
 DISTANCE_TOLERANCE = 1e-6
 
 
