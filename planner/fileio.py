@@ -32,7 +32,7 @@ except ImportError:  # Windows: saves still check and replace atomically, withou
 from planner.errors import PlannerError, Problem
 from planner.fleet import Fleet
 from planner.locate import line_of, locate
-from planner.validate import build_fleet
+from planner.validate import build_fleet, fleet_warnings
 
 if TYPE_CHECKING:
     from planner.importer import Decoded
@@ -163,6 +163,26 @@ def _parse(text: str, name: str) -> Fleet:
             located.append(p.located(name, pos[0] if pos else None, None))
         located.sort(key=lambda p: (p.line or 0))
         raise PlannerError(err.title + f" ({name})", err.message, located) from None
+
+
+def located_warnings(fleet: Fleet, text: str, name: str) -> list[Problem]:
+    """The fleet's warnings (`validate.fleet_warnings`), each with the file and its line, in
+    file order. The text is scanned for lines only when there is something to locate."""
+    found = fleet_warnings(fleet)
+    if not found:
+        return []
+    positions = locate(text)
+    located = []
+    for p in found:
+        pos = line_of(positions, p.path)
+        located.append(p.located(name, pos[0] if pos else None, None))
+    located.sort(key=lambda p: p.line or 0)
+    return located
+
+
+def warnings_of(loaded: LoadedFleet) -> list[Problem]:
+    """`located_warnings` of a loaded file."""
+    return located_warnings(loaded.fleet, loaded.text, str(loaded.path))
 
 
 def _syntax_error(exc: tomllib.TOMLDecodeError, text: str) -> tuple[str, int | None, int | None]:

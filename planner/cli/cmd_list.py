@@ -21,7 +21,8 @@ from planner.units import distance_factor
 
 FORMATS = ("table", "csv", "json", "markdown")
 STATUS_STYLE = {
-    "overdue": "bold red", "no-record": "bold magenta", "near-limit": "yellow",
+    "overdue": "bold red", "no-record": "bold magenta", "missing-fact": "bold magenta",
+    "near-limit": "yellow",
     "ok": "green", "on-condition": "cyan",
 }
 CONSEQUENCE_STYLE = {"engine-damage": "red", "unverified": "magenta", "breakdown": "yellow"}
