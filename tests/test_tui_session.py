@@ -59,7 +59,7 @@ def test_records_are_the_clis(session):
     assert session.records() == export.assessment_records(
         assess_fleet_plan(session.fleet, AS_OF))
     assert summary_text(session.records()) == (
-        "16 vehicles: 4 overdue, 1 no-record, 4 near-limit, 5 ok, 2 on-condition")
+        "16 vehicles: 4 overdue, 1 no-record, 1 missing-fact, 4 near-limit, 4 ok, 2 on-condition")
 
 
 def test_save_refuses_when_the_file_changed(session):

@@ -16,11 +16,13 @@ from textual.theme import Theme
 STYLES = Path(__file__).resolve().parent
 
 STATUS_SYMBOL = {
-    "overdue": "✗", "no-record": "?", "near-limit": "!", "ok": "✓", "on-condition": "~",
+    "overdue": "✗", "no-record": "?", "missing-fact": "∅", "near-limit": "!", "ok": "✓",
+    "on-condition": "~",
 }
 STATUS_STYLE = {
     "overdue": Style(color="#ff6a4d", bold=True),
     "no-record": Style(color="#d58cf0", bold=True),
+    "missing-fact": Style(color="#f08ac0", bold=True),
     "near-limit": Style(color="#f0c040"),
     "ok": Style(color="#8cc46a"),
     "on-condition": Style(color="#8fb3d9"),
@@ -34,6 +36,7 @@ CONSEQUENCE_STYLE = {
 WHAT_IT_MEANS = {
     "overdue": "past a limit: book it now",
     "no-record": "no belt record: replace on acquisition",
+    "missing-fact": "a fact needed to plan it is missing: find it (never ok)",
     "near-limit": "within the warning distance or days",
     "ok": "not yet due",
     "on-condition": "chain or gear: no fixed interval",

@@ -89,17 +89,22 @@ def engine(plan: VehiclePlan, fleet: Fleet) -> Table:
                                               " (not recorded)")
     pairs: list[tuple[str, Text | str]] = [
         ("profile", name),
-        ("drive", f"{spec.drive.value}, fuel {spec.fuel.value if spec.fuel else '–'}"),
+        ("drive", f"{spec.drive_word}, fuel {spec.fuel.value if spec.fuel else '–'}"),
         ("interference", interference),
         ("duty", v.duty.value),
     ]
-    if spec.drive.has_interval:
+    if spec.has_interval:
         why = {IntervalBasis.NORMAL: "normal duty: the maker's normal interval",
                IntervalBasis.SEVERE: "severe duty: the severe-service interval",
                IntervalBasis.SEVERE_UNKNOWN: "severe duty, but no severe-service interval is "
-               "known: the normal one is used (check the maker's schedule)"}[spec.interval_basis]
-        pairs.append(("interval", f"{_km(spec.interval_distance, unit)} or "
-                      f"{spec.interval_months} months, whichever comes first"))
+               "known: the normal one is used (check the maker's schedule)",
+               IntervalBasis.SEVERE_PARTIAL: "severe duty: a severe-service figure for one "
+               "limit only, the normal one for the other (see the notes)"}[spec.interval_basis]
+        months = "not known" if spec.interval_months is None else \
+            f"{spec.interval_months} months"
+        distance = "not known" if spec.interval_distance is None else \
+            _km(spec.interval_distance, unit)
+        pairs.append(("interval", f"{distance} or {months}, whichever comes first"))
         pairs.append(("why", why))
     else:
         pairs.append(("interval", "none: replaced on condition"))
@@ -137,8 +142,11 @@ def install_and_usage(plan: VehiclePlan, unit: str) -> Table:
 
 
 def limits(plan: VehiclePlan, unit: str, as_of: dt.date) -> RenderableType:
-    if not plan.spec.drive.has_interval:
+    if not plan.spec.has_interval:
         return Text("no distance or age limit: this drive is replaced on condition", style=DIM)
+    if plan.due_date is None and plan.spec.missing:
+        return Text("no limits can be dated while a fact is missing: see the notes",
+                    style=DIM)
     if plan.due_date is None:
         return Text("no limits can be dated without a record of the belt now running",
                     style=DIM)
