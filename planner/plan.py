@@ -203,8 +203,9 @@ def resolve_spec(vehicle: Vehicle, fleet: Fleet) -> Spec:
 
 def missing_fact_note(spec: Spec) -> str:
     """What is missing and what to find, in one note (the plan's first for MISSING_FACT)."""
-    words = "; ".join(f"{FACT_WORDS[k]} ({k})" for k in spec.missing)
-    note = f"missing fact: find {words} and set it on the engine profile or the vehicle"
+    words = " and ".join(f"{FACT_WORDS[k]} ({k})" for k in spec.missing)
+    note = f"missing fact: find {words}, and set {'them' if len(spec.missing) > 1 else 'it'} " \
+        "on the engine profile or the vehicle"
     if spec.interval_basis is IntervalBasis.SEVERE_UNKNOWN and spec.interval_distance is not None \
             and spec.interval_months is not None:
         note += ("; until then the normal interval gives the latest the belt can be due: the "

@@ -283,11 +283,13 @@ def vehicle_warnings(index: int, v: Vehicle, fleet: Fleet) -> list[Problem]:
             what = "no drive type given"
         else:
             what = f"no replacement interval known for a {spec.drive_word}"
-        facts = "; ".join(f"{FACT_WORDS[k]} ({k})" for k in spec.missing)
-        warn(f"{what}: planned as missing-fact (needs attention now, never ok) until it is "
-             "found", spec.missing[0],
-             hint=f"find {facts} and set it on {where}; a belt is due by distance or age, "
-             "whichever comes first")
+        facts = " and ".join(f"{FACT_WORDS[k]} ({k})" for k in spec.missing)
+        them = "them" if len(spec.missing) > 1 else "it"
+        warn(f"{what}: planned as missing-fact (needs attention now, never ok) until "
+             f"{'they are' if them == 'them' else 'it is'} found", spec.missing[0],
+             hint=f"find {facts}, and set {them} on {where}"
+             + ("" if spec.missing == ("drive",) else
+                "; a belt is due by distance or age, whichever comes first"))
     if spec.has_interval and v.belt_history is BeltHistory.KNOWN and not v.belt_jobs \
             and v.in_service_odometer > USED_ODOMETER[fleet.unit]:
         warn(f"entered service at {v.in_service_odometer:,.0f} {fleet.unit} with belt_history = "
