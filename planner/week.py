@@ -12,6 +12,10 @@ Rules of this module [trade, no source unless named]:
   no-record and near-limit; `all-due` books only what is already due: overdue and no-record
   (a belt with no record is due now: replace on acquisition). Chains and gears are never
   candidates: they are replaced on condition, not by the calendar.
+- A missing-fact belt (drive type, an interval or the severe-service interval not known) is a
+  candidate under both, but never booked: when it is due is not known. It is listed unplaced
+  with the reason `MISSING_FACT` and the fact to find, and so reaches the call list. (Once
+  overdue on a limit that is known, its status is overdue and it is booked as usual.)
 - Priority is the risk model's triage order (`planner.risk`): overdue and no-record first, by
   expected loss.
 - Each job takes the vehicle's `labour_hours` (vehicle over engine profile). A candidate without

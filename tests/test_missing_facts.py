@@ -6,11 +6,14 @@ from __future__ import annotations
 import datetime as dt
 
 import pytest
+from hypothesis import given
+from hypothesis import strategies as st
 
 from planner import importer
 from planner.cli import main
 from planner.errors import PlannerError
 from planner.fileio import load_fleet, parse_fleet_text
+from planner.fleet import Fleet
 from planner.plan import Status, plan_fleet, plan_vehicle
 from planner.risk import assess_fleet_plan
 from planner.week import plan_week
@@ -333,3 +336,38 @@ def test_a_readings_import_warns_of_a_belt_job_recorded_twice():
     assert len(result.added) == 1
     hits = [line for line in result.report if "recorded twice" in line]
     assert len(hits) == 1 and "D1" in hits[0] and "warning" in hits[0]
+
+
+# -- invariants --------------------------------------------------------------------------------
+
+@given(
+    severe=st.booleans(),
+    drop=st.sets(st.sampled_from(["drive", "interval_distance", "interval_months"])),
+    history=st.sampled_from(["known", "unknown"]),
+    fitted=st.integers(0, 3000),  # days before the planning date the belt went in
+    used=st.integers(0, 200_000),  # km since
+)
+def test_a_missing_fact_never_reads_ok_and_never_lowers_a_status(severe, drop, history,
+                                                                fitted, used):
+    start = AS_OF - dt.timedelta(days=fitted + 30)
+    job_day = AS_OF - dt.timedelta(days=fitted)
+    full = {"id": "V", "drive": "belt", "interference": "interference",
+            "interval_distance": 100000.0, "interval_months": 60, "duty": "normal",
+            "in_service": start, "belt_history": history,
+            "readings": [{"date": AS_OF - dt.timedelta(days=1), "odometer": float(used)}]}
+    if history == "known":
+        full["belt_jobs"] = [{"date": job_day, "odometer": 0.0, "reason": "scheduled"}]
+    # Severe duty with its severe interval equal to the normal one plans as normal duty does.
+    filled = dict(full, duty="severe" if severe else "normal",
+                  severe_interval_distance=100000.0, severe_interval_months=60)
+    missing = {k: v for k, v in full.items() if k not in drop}
+    missing["duty"] = "severe" if severe else "normal"
+    known = Fleet.model_validate({"vehicles": [filled]})
+    gap = Fleet.model_validate({"vehicles": [missing]})
+    p_known = plan_vehicle(known.vehicles[0], known, AS_OF)
+    p_gap = plan_vehicle(gap.vehicles[0], gap, AS_OF)
+    if p_gap.spec.missing:
+        assert p_gap.status in (Status.OVERDUE, Status.NO_RECORD, Status.MISSING_FACT)
+        assert p_gap.status.rank <= p_known.status.rank
+    else:
+        assert p_gap.status is p_known.status
