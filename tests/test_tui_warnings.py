@@ -37,3 +37,11 @@ async def test_recording_the_same_belt_job_twice_warns(tmp_path):
         assert "Belt job recorded" in app.last_message
         assert "recorded twice" in app.last_message
 
+
+
+def test_the_detail_view_gives_no_risk_figure_for_a_missing_fact():
+    from planner.tui.widgets import detail_parts
+
+    said = detail_parts.risk({"status": "missing-fact", "p_fail_horizon": None,
+                              "expected_loss": None}, "").plain
+    assert "fact is missing" in said and "does not apply" not in said

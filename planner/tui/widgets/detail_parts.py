@@ -100,11 +100,13 @@ def engine(plan: VehiclePlan, fleet: Fleet) -> Table:
                "known: the normal one is used (check the maker's schedule)",
                IntervalBasis.SEVERE_PARTIAL: "severe duty: a severe-service figure for one "
                "limit only, the normal one for the other (see the notes)"}[spec.interval_basis]
-        months = "not known" if spec.interval_months is None else \
+        months = "age not known" if spec.interval_months is None else \
             f"{spec.interval_months} months"
-        distance = "not known" if spec.interval_distance is None else \
+        distance = "distance not known" if spec.interval_distance is None else \
             _km(spec.interval_distance, unit)
-        pairs.append(("interval", f"{distance} or {months}, whichever comes first"))
+        pairs.append(("interval", "not known" if spec.interval_months is None and
+                      spec.interval_distance is None else
+                      f"{distance} or {months}, whichever comes first"))
         pairs.append(("why", why))
     else:
         pairs.append(("interval", "none: replaced on condition"))
@@ -162,6 +164,8 @@ def limits(plan: VehiclePlan, unit: str, as_of: dt.date) -> RenderableType:
     days = f"{(time_due - as_of).days:,} days" if time_due else "–"
     table.add_row("age", f"{plan.spec.interval_months} months",
                   time_due.isoformat() if time_due else "–", days, decides[Limit.TIME])
+    if plan.status is Status.MISSING_FACT:  # severe duty, no severe figure: the normal ones
+        table.caption = "normal interval: the latest these can be (a severe one is shorter)"
     return table
 
 
@@ -175,6 +179,9 @@ def odometer(plan: VehiclePlan, unit: str, as_of: dt.date, width: int) -> Text:
 
 
 def risk(record: dict[str, Any], describe: str) -> RenderableType:
+    if record.get("status") == Status.MISSING_FACT.value:
+        return Text("no risk figure while a fact is missing: the interval in force is not "
+                    "known (see the notes)", style=DIM)
     if record.get("p_fail_horizon") is None and record.get("expected_loss") is None:
         return Text("the risk model does not apply to this drive", style=DIM)
     pairs: list[tuple[str, Text | str]] = [
