@@ -371,3 +371,19 @@ def test_a_missing_fact_never_reads_ok_and_never_lowers_a_status(severe, drop, h
         assert p_gap.status.rank <= p_known.status.rank
     else:
         assert p_gap.status is p_known.status
+
+
+@pytest.mark.parametrize("seed", [3, 8])
+def test_warnings_located_vehicle_by_vehicle_agree_with_the_whole_text(seed):
+    # The quick way (each vehicle's table alone) against the plain one (the whole text).
+    from planner.fileio import located_warnings, locate
+    from planner.generate import generate_fleet_text
+    from planner.locate import line_of as position
+    from planner.validate import fleet_warnings
+
+    text = generate_fleet_text(300, seed=seed)
+    fleet = parse_fleet_text(text, "g.toml")
+    found = located_warnings(fleet, text, "g.toml")
+    whole = locate(text)
+    plain = sorted(position(whole, p.path)[0] for p in fleet_warnings(fleet))
+    assert found and [p.line for p in found] == plain
