@@ -376,7 +376,7 @@ def test_a_missing_fact_never_reads_ok_and_never_lowers_a_status(severe, drop, h
 @pytest.mark.parametrize("seed", [3, 8])
 def test_warnings_located_vehicle_by_vehicle_agree_with_the_whole_text(seed):
     # The quick way (each vehicle's table alone) against the plain one (the whole text).
-    from planner.fileio import located_warnings, locate
+    from planner.fileio import locate, located_warnings
     from planner.generate import generate_fleet_text
     from planner.locate import line_of as position
     from planner.validate import fleet_warnings
