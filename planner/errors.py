@@ -32,9 +32,18 @@ def format_path(path: Path) -> str:
     return out
 
 
+ERROR = "error"
+WARNING = "warning"
+
+
 @dataclass(frozen=True)
 class Problem:
-    """One thing wrong with the input, and where."""
+    """One thing wrong with the input, and where.
+
+    An error (`severity` "error") stops the plan; a warning names a fact that is missing or
+    doubtful: the file loads, the vehicle concerned is planned as needing attention now, and
+    `check` lists it after the "valid" line.
+    """
 
     message: str
     path: Path = ()
@@ -43,6 +52,11 @@ class Problem:
     file: str | None = None
     line: int | None = None
     column: int | None = None
+    severity: str = ERROR
+
+    @property
+    def is_warning(self) -> bool:
+        return self.severity == WARNING
 
     @property
     def field(self) -> str:
@@ -70,7 +84,8 @@ class Problem:
             subject.append(f"vehicle {self.vehicle}")
         if self.field:
             subject.append(f"field {self.field}")
-        text = where + (", ".join(subject) + ": " if subject else "") + self.message
+        head = "warning: " if self.is_warning else ""
+        text = where + head + (", ".join(subject) + ": " if subject else "") + self.message
         if self.hint:
             text += f"\n    fix: {self.hint}"
         return text

@@ -66,14 +66,14 @@ def plan_record(p: VehiclePlan, factor: float = 1.0, risk: Risk | None = None) -
         "label": p.vehicle.label,
         "status": p.status.value,
         "consequence": p.consequence.value,
-        "drive": p.spec.drive.value,
+        "drive": p.spec.drive_word,
         "interference": p.spec.interference.value,
         "duty": p.vehicle.duty.value,
         "install_date": _iso(p.install.date) if p.install else None,
         "install_odometer": dist(p.install.odometer) if p.install else None,
-        "interval_distance": dist(p.spec.interval_distance) if p.spec.drive.has_interval
+        "interval_distance": dist(p.spec.interval_distance) if p.spec.has_interval
         else None,
-        "interval_months": p.spec.interval_months if p.spec.drive.has_interval else None,
+        "interval_months": p.spec.interval_months if p.spec.has_interval else None,
         "est_odometer": dist(p.usage.est_odometer),
         "daily_distance": None if p.usage.daily_distance is None
         else round(p.usage.daily_distance * factor, 1),

@@ -29,10 +29,11 @@ try:
 except ImportError:  # Windows: saves still check and replace atomically, without the lock
     fcntl = None  # type: ignore[assignment]
 
+from planner.errors import Path as DataPath
 from planner.errors import PlannerError, Problem
 from planner.fleet import Fleet
 from planner.locate import line_of, locate
-from planner.validate import build_fleet
+from planner.validate import build_fleet, fleet_warnings
 
 if TYPE_CHECKING:
     from planner.importer import Decoded
@@ -123,6 +124,8 @@ def _looks_utf16(raw: bytes) -> bool:
                                or head[0::2].count(0) > len(head) * 0.4)
 
 
+# A [[vehicles]] header line (as `edit_regions` finds them, without importing tomlkit here).
+_VEHICLE_HEADER = re.compile(r"^[ \t]*\[\[[ \t]*vehicles[ \t]*\]\][ \t]*(#.*)?$", re.M)
 _TOML_POS = re.compile(r"^(?P<msg>.*?)\s*\(at line (?P<line>\d+), column (?P<col>\d+)\)$")
 
 
@@ -163,6 +166,55 @@ def _parse(text: str, name: str) -> Fleet:
             located.append(p.located(name, pos[0] if pos else None, None))
         located.sort(key=lambda p: (p.line or 0))
         raise PlannerError(err.title + f" ({name})", err.message, located) from None
+
+
+def located_warnings(fleet: Fleet, text: str, name: str) -> list[Problem]:
+    """The fleet's warnings (`validate.fleet_warnings`), each with the file and its line, in
+    file order. The text is scanned for lines only when there is something to locate."""
+    found = fleet_warnings(fleet)
+    if not found:
+        return []
+    starts = [m.start() for m in _VEHICLE_HEADER.finditer(text)]
+    if len(starts) != len(fleet.vehicles):  # vehicles written some other way: the whole text
+        positions = locate(text)
+        return _sorted([p.located(name, _line(positions, p.path), None) for p in found])
+    # Each warning located in its own vehicle's table (the scan of a whole big file takes
+    # seconds): the text from its [[vehicles]] header to the next, as vehicles[0].
+    bounds = [*starts, len(text)]
+    lines_before, count, previous = [], 0, 0  # newlines before each header, in one pass
+    for start in starts:
+        count += text.count("\n", previous, start)
+        lines_before.append(count)
+        previous = start
+    head: dict[DataPath, tuple[int, int]] | None = None
+    by_vehicle: dict[int, dict[DataPath, tuple[int, int]]] = {}
+    located = []
+    for p in found:
+        if len(p.path) >= 2 and p.path[0] == "vehicles" and isinstance(p.path[1], int):
+            k = p.path[1]
+            if k not in by_vehicle:
+                by_vehicle[k] = locate(text[bounds[k]:bounds[k + 1]])
+            line = _line(by_vehicle[k], ("vehicles", 0, *p.path[2:]))
+            located.append(p.located(name, None if line is None else line + lines_before[k],
+                                     None))
+        else:
+            head = locate(text[:bounds[0]]) if head is None else head
+            located.append(p.located(name, _line(head, p.path), None))
+    return _sorted(located)
+
+
+def _line(positions: dict[DataPath, tuple[int, int]], path: DataPath) -> int | None:
+    pos = line_of(positions, path)
+    return pos[0] if pos else None
+
+
+def _sorted(problems: list[Problem]) -> list[Problem]:
+    return sorted(problems, key=lambda p: p.line or 0)
+
+
+def warnings_of(loaded: LoadedFleet) -> list[Problem]:
+    """`located_warnings` of a loaded file."""
+    return located_warnings(loaded.fleet, loaded.text, str(loaded.path))
 
 
 def _syntax_error(exc: tomllib.TOMLDecodeError, text: str) -> tuple[str, int | None, int | None]:

@@ -42,6 +42,10 @@ DISTANCE_TOLERANCE = 1e-6
 class Status(StrEnum):
     OVERDUE = "overdue"
     NO_RECORD = "no-record"
+    # A fact needed to plan the belt is missing (drive type, an interval, the severe-service
+    # interval on severe duty): never safe, needs attention now; overdue on the limits that are
+    # known stays overdue.
+    MISSING_FACT = "missing-fact"
     NEAR_LIMIT = "near-limit"
     OK = "ok"
     ON_CONDITION = "on-condition"
@@ -74,6 +78,17 @@ class IntervalBasis(StrEnum):
     NORMAL = "normal"
     SEVERE = "severe"
     SEVERE_UNKNOWN = "severe duty, no severe interval known"
+    SEVERE_PARTIAL = "severe duty, a severe interval known for one limit only"
+
+
+# What to find for each fact a plan can miss, by the fleet-file key that would hold it.
+FACT_WORDS = {
+    "drive": "the drive type (belt, wet-belt, chain or gear)",
+    "interval_distance": "the maker's replacement interval by distance",
+    "interval_months": "the maker's replacement interval by age",
+    "severe_interval_distance": "the maker's severe-service interval by distance",
+    "severe_interval_months": "the maker's severe-service interval by age",
+}
 
 
 @dataclass(frozen=True)
@@ -81,7 +96,7 @@ class Spec:
     """A vehicle's drive after its own fields have overridden its engine profile's."""
 
     fuel: Fuel | None
-    drive: Drive
+    drive: Drive | None  # None: not given (planned as a belt until someone finds out)
     interference: Interference
     interference_given: bool
     interval_distance: float | None
@@ -91,6 +106,18 @@ class Spec:
     parts: tuple[str, ...]
     parts_cost: float | None
     failure_cost: float | None
+    # Keys of the facts needed to plan this belt that neither vehicle nor profile gives
+    # (see FACT_WORDS), in the order to find them.
+    missing: tuple[str, ...] = ()
+
+    @property
+    def has_interval(self) -> bool:
+        """Replaced by interval: a belt or wet belt, or a drive not yet known (it may be one)."""
+        return self.drive is None or self.drive.has_interval
+
+    @property
+    def drive_word(self) -> str:
+        return self.drive.value if self.drive is not None else "unknown"
 
 
 @dataclass(frozen=True)
@@ -166,18 +193,24 @@ def resolve_spec(vehicle: Vehicle, fleet: Fleet) -> Spec:
         own = getattr(vehicle, name)
         merged[name] = own if own is not None else getattr(profile, name, None)
     drive = merged["drive"]
-    if drive is None:  # validation forbids this; keep the engine total for direct callers
-        raise ValueError(f"vehicle {vehicle.id}: no drive type")
     distance, months = merged["interval_distance"], merged["interval_months"]
     basis = IntervalBasis.NORMAL
-    if vehicle.duty is Duty.SEVERE:
+    missing: list[str] = []
+    if drive is None:
+        missing.append("drive")
+    elif drive.has_interval:
+        missing += [k for k in ("interval_distance", "interval_months") if merged[k] is None]
+    if vehicle.duty is Duty.SEVERE and (drive is None or drive.has_interval):
         sev_d, sev_m = merged["severe_interval_distance"], merged["severe_interval_months"]
         if sev_d is None and sev_m is None:
             basis = IntervalBasis.SEVERE_UNKNOWN
         else:
-            basis = IntervalBasis.SEVERE
+            basis = IntervalBasis.SEVERE if None not in (sev_d, sev_m) else \
+                IntervalBasis.SEVERE_PARTIAL
             distance = sev_d if sev_d is not None else distance
             months = sev_m if sev_m is not None else months
+        missing += [k for k, v in (("severe_interval_distance", sev_d),
+                                   ("severe_interval_months", sev_m)) if v is None]
     return Spec(
         fuel=merged["fuel"],
         drive=drive,
@@ -190,7 +223,23 @@ def resolve_spec(vehicle: Vehicle, fleet: Fleet) -> Spec:
         parts=tuple(merged["parts"] or ()),
         parts_cost=merged["parts_cost"],
         failure_cost=merged["failure_cost"],
+        missing=tuple(missing),
     )
+
+
+def missing_fact_note(spec: Spec) -> str:
+    """What is missing and what to find, in one note (the plan's first for MISSING_FACT)."""
+    words = " and ".join(f"{FACT_WORDS[k]} ({k})" for k in spec.missing)
+    note = f"missing fact: find {words}, and set {'them' if len(spec.missing) > 1 else 'it'} " \
+        "on the engine profile or the vehicle"
+    if spec.interval_basis is IntervalBasis.SEVERE_UNKNOWN and spec.interval_distance is not None \
+            and spec.interval_months is not None:
+        note += ("; until then the normal interval gives the latest the belt can be due: the "
+                 "maker's severe-service interval is usually shorter")
+    elif spec.interval_basis is IntervalBasis.SEVERE_PARTIAL:
+        note += "; if the maker gives no separate severe figure for that limit, set it to the " \
+            "normal one"
+    return note
 
 
 def consequence_of(spec: Spec) -> Consequence:
@@ -403,9 +452,8 @@ def plan_vehicle(vehicle: Vehicle, fleet: Fleet, as_of: dt.date,
                          "are almost always interference engines")
     if spec.interval_basis is IntervalBasis.SEVERE:
         notes.append("severe duty: the severe-service interval is in force")
-    elif spec.interval_basis is IntervalBasis.SEVERE_UNKNOWN and spec.drive.has_interval:
-        notes.append("severe duty but no severe-service interval is known: the normal interval "
-                     "is used; check the maker's severe-service schedule, it is usually shorter")
+    elif spec.interval_basis is IntervalBasis.SEVERE_PARTIAL:
+        notes.append(_partial_severe_note(spec, unit))
     if spec.drive is Drive.WET_BELT:
         notes.append("wet belt: runs in oil; a missed oil service or wrong oil shortens its life, "
                      "and belt debris can block the oil pick-up")
@@ -418,6 +466,10 @@ def plan_vehicle(vehicle: Vehicle, fleet: Fleet, as_of: dt.date,
     if use.last_date is not None and (as_of - use.last_date).days > STALE_READING_DAYS:
         notes.append(f"last odometer value is {(as_of - use.last_date).days} days old "
                      f"({use.last_date}): the estimate may be far off")
+    earlier = [j for j in vehicle.belt_jobs if j.date < vehicle.in_service and j.date <= as_of]
+    if earlier:
+        notes.append(f"belt job of {max(j.date for j in earlier)} is dated before the vehicle "
+                     f"entered service ({vehicle.in_service}): a previous owner's record")
     later = sum(1 for r in vehicle.readings if r.date > as_of) + sum(
         1 for j in vehicle.belt_jobs if j.date > as_of)
     if later:
@@ -427,7 +479,7 @@ def plan_vehicle(vehicle: Vehicle, fleet: Fleet, as_of: dt.date,
     empty = dict(due_odometer=None, distance_remaining=None, time_due_date=None,
                  distance_due_date=None, due_date=None, days_remaining=None,
                  deciding_limit=None)
-    if not spec.drive.has_interval:
+    if not spec.has_interval:
         notes.insert(0, f"timing {spec.drive.value}: no fixed interval; replaced on condition "
                      "(rattle at cold start, stretch beyond the maker's limit, cam/crank "
                      "correlation fault)" if spec.drive is Drive.CHAIN else
@@ -440,11 +492,15 @@ def plan_vehicle(vehicle: Vehicle, fleet: Fleet, as_of: dt.date,
     if install is None:
         notes.insert(0, "no belt record (bought used): replace on acquisition rather than "
                      "trust the odometer")
+        if spec.missing:
+            notes.insert(1, missing_fact_note(spec))
         life = life_fraction(spec, assumed_install(vehicle), use.est_odometer, as_of)
         return VehiclePlan(vehicle, spec, Status.NO_RECORD, consequence, None, use,
                            notes=tuple(notes), life_used=life, **empty)
+    if spec.interval_distance is None or spec.interval_months is None:
+        return _plan_without_interval(vehicle, spec, consequence, install, use, notes, as_of,
+                                      unit)
 
-    assert spec.interval_distance is not None and spec.interval_months is not None
     due_odometer = install.odometer + spec.interval_distance
     est = use.est_odometer if use.est_odometer is not None else install.odometer
     remaining = due_odometer - est
@@ -472,6 +528,12 @@ def plan_vehicle(vehicle: Vehicle, fleet: Fleet, as_of: dt.date,
     if status is Status.OVERDUE:
         notes.insert(1, "past its interval: treat it as at risk of a sudden engine stop and "
                      "book the job now")
+    if spec.missing:  # severe duty without its severe interval: never ok, never lowered
+        if status is Status.OVERDUE:
+            notes.insert(2, missing_fact_note(spec))
+        else:
+            status = Status.MISSING_FACT
+            notes.insert(0, missing_fact_note(spec))
     return VehiclePlan(
         vehicle, spec, status, consequence, install, use,
         due_odometer=due_odometer,
@@ -484,6 +546,51 @@ def plan_vehicle(vehicle: Vehicle, fleet: Fleet, as_of: dt.date,
         notes=tuple(notes),
         life_used=life_fraction(spec, install, est, as_of),
     )
+
+
+def _partial_severe_note(spec: Spec, unit: str) -> str:
+    """Severe duty with a severe figure for one limit only: which limit is which."""
+    if "severe_interval_months" in spec.missing:
+        return (f"severe duty: the severe-service distance interval ({spec.interval_distance:,.0f} "
+                f"{unit}) is used with the normal age interval ({spec.interval_months} months): "
+                "no severe-service age interval is known (severe_interval_months)")
+    return (f"severe duty: the severe-service age interval ({spec.interval_months} months) is "
+            f"used with the normal distance interval ({spec.interval_distance:,.0f} {unit}): "
+            "no severe-service distance interval is known (severe_interval_distance)")
+
+
+def _plan_without_interval(vehicle: Vehicle, spec: Spec, consequence: Consequence,
+                           install: Install, use: Usage, notes: list[str], as_of: dt.date,
+                           unit: str) -> VehiclePlan:
+    """A belt whose drive type or interval is not known: it cannot be planned as "not yet
+    due". Overdue when a limit that is known has been reached, else MISSING_FACT; no due date
+    is made up and no probability is computed (`life_used` stays unknown)."""
+    due_odometer = time_due = None
+    passed = []
+    if spec.interval_months is not None:
+        time_due = add_months(install.date, spec.interval_months)
+        if time_due <= as_of:
+            passed.append(f"age limit reached: {spec.interval_months} months from "
+                          f"{install.date} -> {time_due}")
+    if spec.interval_distance is not None:
+        due_odometer = install.odometer + spec.interval_distance
+        if use.est_odometer is not None and use.est_odometer >= due_odometer:
+            passed.append(f"distance limit reached: {spec.interval_distance:,.0f} {unit} from "
+                          f"{install.odometer:,.0f} {unit} -> {due_odometer:,.0f} {unit}")
+    remaining = None
+    if due_odometer is not None and use.est_odometer is not None:
+        remaining = due_odometer - use.est_odometer
+    if passed:
+        status = Status.OVERDUE
+        notes[:0] = [passed[0], "past its interval: treat it as at risk of a sudden engine stop "
+                     "and book the job now", missing_fact_note(spec)]
+    else:
+        status = Status.MISSING_FACT
+        notes.insert(0, missing_fact_note(spec))
+    return VehiclePlan(vehicle, spec, status, consequence, install, use,
+                       due_odometer=due_odometer, distance_remaining=remaining,
+                       time_due_date=time_due, distance_due_date=None, due_date=None,
+                       days_remaining=None, deciding_limit=None, notes=tuple(notes))
 
 
 def _deciding_note(limit: Limit, status: Status, spec: Spec, install: Install, due: dt.date,

@@ -154,7 +154,7 @@ def life_records(vehicle: Vehicle, fleet: Fleet, as_of: dt.date,
     whose start is unknown (bought used, before the first job) is left out.
     """
     spec = plan.spec if plan is not None else resolve_spec(vehicle, fleet)
-    if not spec.drive.has_interval:
+    if not spec.has_interval:
         return [], []
     failed: list[float] = []
     censored: list[float] = []
@@ -249,10 +249,14 @@ def failure_cost(p: VehiclePlan, fleet: Fleet) -> float | None:
 def assess(p: VehiclePlan, fleet: Fleet, model: RiskModel, as_of: dt.date) -> Risk:
     """Probability of failure within the horizon and before the due date, and expected loss."""
     install = _install_for_risk(p)
-    if not p.spec.drive.has_interval or install is None or p.life_used is None:
+    if p.status is Status.MISSING_FACT:  # the interval in force is not known: no figure
+        return Risk(None, None, None, None, None, None,
+                    ("no risk figure while a fact is missing: the interval in force is not "
+                     "known",))
+    if not p.spec.has_interval or install is None or p.life_used is None:
         return Risk(None, None, None, None, None, None,
                     ("no interval-based risk: replaced on condition",)
-                    if not p.spec.drive.has_interval else ())
+                    if not p.spec.has_interval else ())
     notes = []
     if install.assumed:
         notes.append("risk assumes the belt is as old as the vehicle (no belt record)")
@@ -287,16 +291,17 @@ def assess_fleet(plans: Sequence[VehiclePlan], fleet: Fleet, model: RiskModel,
 
 
 def triage_key(p: VehiclePlan, r: Risk) -> tuple:
-    """Overdue and no-record first, then the rest; within each, the larger expected loss first;
-    equal keys keep the default order (`plan.sort_key`: see `triage`).
+    """Overdue and no-record first, then missing-fact (needs attention now: a fact to find
+    before the belt can be planned), then the rest; within each, the larger expected loss
+    first; equal keys keep the default order (`plan.sort_key`: see `triage`).
 
     An unknown expected loss (no cost given) sorts as the largest: unknown must not look safe.
     Chains and gears come last, as on condition.
     """
     group = 0 if p.status in (Status.OVERDUE, Status.NO_RECORD) else (
-        2 if p.status is Status.ON_CONDITION else 1)
+        1 if p.status is Status.MISSING_FACT else 3 if p.status is Status.ON_CONDITION else 2)
     loss = r.expected_loss
-    unknown_loss = loss is None and group < 2
+    unknown_loss = loss is None and group < 3
     return (group, 0 if unknown_loss else 1, -(loss or 0.0))
 
 
@@ -353,7 +358,7 @@ def replacement_points(fleet: Fleet, model: RiskModel) -> list[ReplacementPoint]
         if key in seen:
             continue
         spec = resolve_spec(v.model_copy(update={"duty": v.duty.NORMAL}), fleet)
-        if spec.drive.has_interval:
+        if spec.has_interval:
             seen[key] = replacement_point(key, spec, fleet, model, consequence_of(spec))
     return list(seen.values())
 

@@ -14,24 +14,33 @@ import math
 import types
 import typing
 from collections.abc import Iterable
+from dataclasses import replace
 from enum import Enum
 from typing import Any
 
 from pydantic import BaseModel, ValidationError
 
-from planner.errors import Path, PlannerError, Problem
+from planner.errors import WARNING, Path, PlannerError, Problem
 from planner.fleet import (
     CONTROL_CHARACTER,
+    OLD_SETTING_NAMES,
     SPEC_FIELDS,
+    BeltHistory,
     EngineProfile,
     Fleet,
     Vehicle,
     fields_of,
     is_table_class,
 )
+from planner.plan import FACT_WORDS, IntervalBasis, resolve_spec
 
 EARLIEST_DATE = dt.date(1950, 1, 1)
 LATEST_DATE = dt.date(2100, 12, 31)
+# An in-service odometer above this, with belt_history = "known" and no belt job, reads as a
+# vehicle bought used and taken for a factory belt: warned (common practice, no source: a new
+# vehicle is delivered with a few hundred at most; demonstrators and short leases a few
+# thousand).
+USED_ODOMETER = {"km": 5000.0, "mi": 3000.0}
 
 
 def build_fleet(data: dict[str, Any]) -> Fleet:
@@ -52,6 +61,7 @@ def build_fleet(data: dict[str, Any]) -> Fleet:
     problems.extend(found)
 
     vehicles: list[tuple[int, Vehicle]] = []
+    broken: list[tuple[int, dict[str, Any], list[Problem]]] = []
     for index, raw in enumerate(raw_vehicles):
         vid = _vehicle_name(raw, index)
         if not isinstance(raw, dict):
@@ -63,11 +73,15 @@ def build_fleet(data: dict[str, Any]) -> Fleet:
         problems.extend(found)
         if vehicle is not None:
             vehicles.append((index, vehicle))
+        else:
+            broken.append((index, raw, found))
 
     engines = shell.engines if shell else {}
     raw_engines = data.get("engines")
     engine_ids = set(raw_engines) if isinstance(raw_engines, dict) else set()
     problems.extend(check_vehicles(vehicles, engines, engine_ids))
+    for index, raw, found in broken:  # what can still run on a vehicle that did not validate
+        problems.extend(_rules_of_the_rest(index, raw, found, engines, engine_ids))
     if shell is not None:
         problems.extend(check_settings(shell))
     if problems:
@@ -109,6 +123,31 @@ def rebuild_fleet(fleet: Fleet, start: int, stop: int, raw_vehicles: list[Any]) 
     if problems:
         raise PlannerError("The fleet file has problems", f"{len(problems)} found", problems)
     return fleet.model_copy(update={"vehicles": vehicles})
+
+
+def _rules_of_the_rest(index: int, raw: dict[str, Any], found: list[Problem],
+                       engines: dict[str, EngineProfile], engine_ids: set[str]) -> list[Problem]:
+    """The cross-field rules of a vehicle that failed validation, run on its other keys.
+
+    The keys with a problem are left out; if the rest validates, the vehicle's own rules run on
+    it and report what does not concern a key left out (so one run lists a bad type and an
+    unknown profile together). If it still does not validate (a required key was bad), only
+    the profile check runs, on the raw value.
+    """
+    bad = {p.path[2] for p in found if len(p.path) > 2 and p.path[:2] == ("vehicles", index)}
+    rest = {k: v for k, v in raw.items() if k not in bad}
+    try:
+        vehicle = Vehicle.model_validate(rest)
+    except ValidationError:
+        engine = raw.get("engine")
+        if "engine" in bad or not isinstance(engine, str) or engine in engine_ids:
+            return []
+        vehicle = Vehicle.model_construct(id=_vehicle_name(raw, index), engine=engine)
+        return [p for p in check_vehicle(index, vehicle, engines, engine_ids, dates=False)
+                if p.path[2:3] == ("engine",)]
+    vid = _vehicle_name(raw, index)
+    return [replace(p, vehicle=vid) for p in check_vehicle(index, vehicle, engines, engine_ids)
+            if not (len(p.path) > 2 and p.path[2] in bad)]
 
 
 def _vehicle_name(raw: Any, index: int) -> str:
@@ -179,18 +218,16 @@ def _duplicate_id(index: int, v: Vehicle, first_seen: dict[str, int]) -> list[Pr
 
 
 def check_vehicle(index: int, v: Vehicle, engines: dict[str, EngineProfile],
-                  engine_ids: set[str]) -> list[Problem]:
-    """The rules of one vehicle with its profile: a known profile, the drive's intervals,
-    dates and odometers in order."""
+                  engine_ids: set[str], dates: bool = True) -> list[Problem]:
+    """The rules of one vehicle with its profile: a known profile, dates and odometers in
+    order. (A missing drive type or interval is a warning, not an error: `fleet_warnings`.)"""
     problems: list[Problem] = []
     base: Path = ("vehicles", index)
 
     def add(msg: str, *field: str | int, hint: str = "") -> None:
         problems.append(Problem(msg, base + tuple(field), hint=hint, vehicle=v.id))
 
-    profile = None
     if v.engine is not None:
-        profile = engines.get(v.engine)
         if v.engine not in engine_ids:
             near = difflib.get_close_matches(v.engine, sorted(engine_ids), n=1)
             known = ", ".join(sorted(engine_ids)) or "none"
@@ -200,37 +237,90 @@ def check_vehicle(index: int, v: Vehicle, engines: dict[str, EngineProfile],
                 hint=(f"did you mean {near[0]!r}? " if near else "")
                 + f"define [engines.{v.engine}] or use one of: {known}",
             )
-    spec = {f: _resolved(v, profile, f) for f in ("drive", "interval_distance",
-                                                   "interval_months")}
-    if v.engine is None or profile is not None:  # an unknown profile is reported above
-        _check_drive(spec, v, add)
-    _check_dates_and_odometers(v, add)
+    if dates:
+        _check_dates_and_odometers(v, add)
     return problems
 
 
-def _resolved(v: Vehicle, profile: EngineProfile | None, name: str) -> Any:
-    own = getattr(v, name)
-    if own is not None:
-        return own
-    return getattr(profile, name) if profile is not None else None
+def fleet_warnings(fleet: Fleet) -> list[Problem]:
+    """What a valid fleet leaves missing or doubtful: the file loads and is planned, and each
+    of these is a warning (`Problem.severity`), located by the caller like an error."""
+    out: list[Problem] = []
+    settings = fleet.fleet
+    for old, new in OLD_SETTING_NAMES.items():
+        if getattr(settings, old) is not None:
+            both = new in settings.model_fields_set
+            out.append(Problem(
+                f"{old} is the earlier name of {new}: the file still loads"
+                + (f", and {new} (also given) is the one used" if both else ""),
+                ("fleet", old), hint=f"rename the key to {new}" if not both else
+                f"remove {old}", severity=WARNING))
+    for index, v in enumerate(fleet.vehicles):
+        out.extend(vehicle_warnings(index, v, fleet))
+    return out
 
 
-def _check_drive(spec: dict[str, Any], v: Vehicle, add: Any) -> None:
-    where = f"engine profile {v.engine!r} or the vehicle" if v.engine else "the vehicle"
-    drive = spec["drive"]
-    if drive is None:
-        add("no drive type given", "drive",
-            hint=f"set drive = \"belt\", \"wet-belt\", \"chain\" or \"gear\" on {where}")
-        return
-    if drive.has_interval:
-        for name, words in (("interval_distance", "distance"), ("interval_months", "age")):
-            if spec[name] is None:
-                add(
-                    f"missing interval for a {drive.value}: no {name}",
-                    name,
-                    hint=f"set {name} (the maker's {words} limit) on {where}; a belt is due "
-                    "by distance or age, whichever comes first",
-                )
+def vehicle_warnings(index: int, v: Vehicle, fleet: Fleet) -> list[Problem]:
+    """One vehicle's warnings: facts missing to plan its belt, a used vehicle taken for a
+    factory belt, a previous owner's belt job, a belt job recorded twice."""
+    out: list[Problem] = []
+    base: Path = ("vehicles", index)
+
+    def warn(msg: str, *field: str | int, hint: str = "") -> None:
+        out.append(Problem(msg, base + tuple(field), hint=hint, vehicle=v.id, severity=WARNING))
+
+    if v.engine is not None and v.engine not in fleet.engines:
+        return out  # an unknown profile is an error; its vehicle never gets here
+    spec = resolve_spec(v, fleet)
+    if spec.missing:
+        where = f"engine profile {v.engine!r} or the vehicle" if v.engine else "the vehicle"
+        if spec.interval_basis in (IntervalBasis.SEVERE_UNKNOWN, IntervalBasis.SEVERE_PARTIAL) \
+                and spec.missing[0].startswith("severe"):
+            what = "severe duty, but no severe-service interval is known"
+            if spec.interval_basis is IntervalBasis.SEVERE_PARTIAL:
+                what = "severe duty, but a severe-service interval is known for one limit only"
+        elif spec.missing[0] == "drive":
+            what = "no drive type given"
+        else:
+            what = f"no replacement interval known for a {spec.drive_word}"
+        facts = " and ".join(f"{FACT_WORDS[k]} ({k})" for k in spec.missing)
+        them = "them" if len(spec.missing) > 1 else "it"
+        warn(f"{what}: planned as missing-fact (needs attention now, never ok) until "
+             f"{'they are' if them == 'them' else 'it is'} found", spec.missing[0],
+             hint=f"find {facts}, and set {them} on {where}"
+             + ("" if spec.missing == ("drive",) else
+                "; a belt is due by distance or age, whichever comes first"))
+    if spec.has_interval and v.belt_history is BeltHistory.KNOWN and not v.belt_jobs \
+            and v.in_service_odometer > USED_ODOMETER[fleet.unit]:
+        warn(f"entered service at {v.in_service_odometer:,.0f} {fleet.unit} with belt_history = "
+             "\"known\" and no belt job: planned as if the factory belt were fitted at "
+             f"{v.in_service_odometer:,.0f} {fleet.unit}", "belt_history",
+             hint="if it was bought used without a belt record, set belt_history = \"unknown\" "
+             "(common practice: replace on acquisition); if the belt was changed, record the job")
+    for j, job in enumerate(v.belt_jobs):
+        if job.date < v.in_service:
+            warn(f"belt job of {job.date} is dated before the vehicle entered service "
+                 f"({v.in_service}): accepted as a previous owner's record", "belt_jobs", j,
+                 hint="check that the record is this vehicle's (plate or chassis number)")
+    out.extend(repeated_job_warnings(index, v, fleet.unit))
+    return out
+
+
+def repeated_job_warnings(index: int, v: Vehicle, unit: str) -> list[Problem]:
+    """A belt job recorded twice (same day, same odometer): one warning per repeat."""
+    out = []
+    seen: dict[tuple[dt.date, float], int] = {}
+    for j, job in enumerate(v.belt_jobs):
+        key = (job.date, job.odometer)
+        if key in seen:
+            out.append(Problem(
+                f"the belt job of {job.date} at {job.odometer:,.0f} {unit} is recorded twice "
+                f"(also belt_jobs[{seen[key]}])", ("vehicles", index, "belt_jobs", j),
+                hint="remove one of them (two jobs on one day at one odometer is one job)",
+                vehicle=v.id, severity=WARNING))
+        else:
+            seen[key] = j
+    return out
 
 
 def _check_dates_and_odometers(v: Vehicle, add: Any) -> None:
@@ -240,10 +330,23 @@ def _check_dates_and_odometers(v: Vehicle, add: Any) -> None:
     for j, job in enumerate(v.belt_jobs):
         dated.append((job.date, job.odometer, ("belt_jobs", j), "belt job"))
 
-    for day, _, where, kind in dated:
+    earlier: list[int] = []
+    for k, (day, odo, where, kind) in enumerate(dated):
         if not EARLIEST_DATE <= day <= LATEST_DATE:
             add(f"date {day.isoformat()} is outside {EARLIEST_DATE.year}-{LATEST_DATE.year}",
                 *where, "date", hint="check the year")
+        elif day < v.in_service and kind == "belt job":
+            # A previous owner's receipt: accepted when its odometer fits (a warning says so).
+            if odo > v.in_service_odometer:
+                add(f"belt job dated {day.isoformat()}, before the vehicle entered service "
+                    f"({v.in_service.isoformat()}), reads {odo:,.0f}: above the in-service "
+                    f"odometer {v.in_service_odometer:,.0f}", *where, "odometer",
+                    hint="correct the job's date or odometer, or in_service_odometer")
+                earlier.append(k)
+            elif v.first_registered is not None and day < v.first_registered:
+                add(f"belt job dated {day.isoformat()}, before the vehicle was first registered "
+                    f"({v.first_registered.isoformat()})", *where, "date",
+                    hint="correct the date, or first_registered")
         elif day < v.in_service:
             add(
                 f"{kind} dated {day.isoformat()} is before the vehicle entered service "
@@ -262,6 +365,7 @@ def _check_dates_and_odometers(v: Vehicle, add: Any) -> None:
                 f"{LATEST_DATE.year}", name, hint="check the year")
 
     # Odometers only go forward: each value must be at least every value dated before it.
+    dated = [d for k, d in enumerate(dated) if k not in earlier]  # reported above
     dated.append((v.in_service, v.in_service_odometer, ("in_service_odometer",), "in service"))
     dated.sort(key=lambda x: (x[0], x[1]))
     highest: tuple[dt.date, float, str] | None = None
@@ -683,4 +787,4 @@ def _inner_model(annotation: Any) -> Any:
     return None
 
 
-__all__ = ["build_fleet", "check_vehicles", "SPEC_FIELDS"]
+__all__ = ["build_fleet", "check_vehicles", "fleet_warnings", "SPEC_FIELDS"]

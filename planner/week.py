@@ -15,6 +15,10 @@ Rules of this module [trade, no source unless named]:
 - Jobs that are due now (overdue, or no belt record) are **required**: the totals give their
   count and cost apart and never set a risk figure against them. Only the near-limit jobs, which
   could in principle wait until their due date, carry "expected loss removed".
+- A missing-fact belt (drive type, an interval or the severe-service interval not known) is a
+  candidate under both, but never booked: when it is due is not known. It is listed unplaced
+  with the reason `MISSING_FACT` and the fact to find, and so reaches the call list. (Once
+  overdue on a limit that is known, its status is overdue and it is booked as usual.)
 - Priority is the risk model's triage order (`planner.risk`): overdue and no-record first, by
   expected loss.
 - Each job takes the vehicle's `labour_hours` (vehicle over engine profile). A candidate without
@@ -60,17 +64,19 @@ from planner.schedule import (
 )
 
 INCLUDE: dict[str, tuple[Status, ...]] = {
-    "near-limit": (Status.OVERDUE, Status.NO_RECORD, Status.NEAR_LIMIT),
-    "all-due": (Status.OVERDUE, Status.NO_RECORD),
+    "near-limit": (Status.OVERDUE, Status.NO_RECORD, Status.MISSING_FACT, Status.NEAR_LIMIT),
+    "all-due": (Status.OVERDUE, Status.NO_RECORD, Status.MISSING_FACT),
 }
 DEFAULT_INCLUDE = "near-limit"
 MAX_WEEKS = 52
 NO_LABOUR_HOURS = "no labour_hours set"
+MISSING_FACT = "a fact needed to plan it is missing"
 PARTS_NOT_LISTED = "(parts not listed)"
 
 STATUS_WORDS = {
     Status.OVERDUE: "overdue",
     Status.NO_RECORD: "no belt record",
+    Status.MISSING_FACT: "a fact is missing",
     Status.NEAR_LIMIT: "near its limit",
     Status.OK: "ok",
     Status.ON_CONDITION: "on condition",
@@ -115,7 +121,7 @@ class WeekJob:
         """Short status for a call: 'overdue by age', 'near its limit by distance'."""
         words = STATUS_WORDS[self.status]
         limit = self.plan.deciding_limit
-        if limit is None or self.status is Status.NO_RECORD:
+        if limit is None or self.status in (Status.NO_RECORD, Status.MISSING_FACT):
             return words
         return f"{words} by {'age' if limit is Limit.TIME else 'distance'}"
 
@@ -307,7 +313,7 @@ def candidates(assessment: FleetAssessment, include: str = DEFAULT_INCLUDE) -> l
         raise PlannerError(f"unknown --include {include!r}",
                            f"choose from: {', '.join(INCLUDE)}")
     wanted = INCLUDE[include]
-    return [p for p in assessment.plans if p.spec.drive.has_interval and p.status in wanted]
+    return [p for p in assessment.plans if p.spec.has_interval and p.status in wanted]
 
 
 def interval_words(p: VehiclePlan, unit: str) -> str:
@@ -324,13 +330,15 @@ def interval_words(p: VehiclePlan, unit: str) -> str:
         text += " (severe-service interval)"
     elif s.interval_basis is IntervalBasis.SEVERE_UNKNOWN:
         text += " (normal interval: severe duty, but no severe-service interval known)"
+    elif s.interval_basis is IntervalBasis.SEVERE_PARTIAL:
+        text += " (severe duty: a severe-service figure for one limit only)"
     return text
 
 
 def reason_words(p: VehiclePlan) -> str:
     """Status in words and the deciding limit (the plan's first note says which and when)."""
     first = p.notes[0] if p.notes else ""
-    if p.status is Status.NO_RECORD:
+    if p.status in (Status.NO_RECORD, Status.MISSING_FACT):
         return first or STATUS_WORDS[p.status]
     return f"{STATUS_WORDS[p.status]}: {first}" if first else STATUS_WORDS[p.status]
 
@@ -347,7 +355,7 @@ def make_job(p: VehiclePlan, risk: Risk | None, priority: int, unit: str,
         vehicle_id=v.id,
         label=v.label,
         engine=engine,
-        drive=p.spec.drive.value,
+        drive=p.spec.drive_word,
         consequence=p.consequence,
         status=p.status,
         hours=p.spec.labour_hours,
@@ -441,10 +449,16 @@ def plan_week(fleet: Fleet, as_of: date, start: date | None = None, weeks: int =
     assessment = assess_fleet_plan(fleet, as_of, "triage")
     jobs = tuple(make_job(p, assessment.risks.get(p.id), n, fleet.unit, fleet)
                  for n, p in enumerate(candidates(assessment, include)))
-    requests = tuple(request_of(j) for j in jobs if j.hours is not None)
+    requests = tuple(request_of(j) for j in jobs if _bookable(j))
     ctx = _Context(fleet, as_of, start, weeks, include, calendar, jobs, requests,
                    assessment.model)
     return _assemble(ctx, schedule_jobs(requests, calendar, start, 7 * weeks, as_of))
+
+
+def _bookable(job: WeekJob) -> bool:
+    """A job the scheduler may book: hours known, and not waiting for a missing fact (its
+    interval in force is not known, so neither is when it is due; it is listed, not booked)."""
+    return job.hours is not None and job.status is not Status.MISSING_FACT
 
 
 def move(week: WeekPlan, vehicle_id: str, day: date, bay: int) -> WeekPlan:
@@ -456,6 +470,9 @@ def move(week: WeekPlan, vehicle_id: str, day: date, bay: int) -> WeekPlan:
     job = week.job(vehicle_id)
     if job is None:
         raise PlannerError(f"cannot move {vehicle_id}: it is not a job in this week plan")
+    if job.status is Status.MISSING_FACT:
+        raise PlannerError(f"cannot book {vehicle_id}: {MISSING_FACT}",
+                           job.plan.notes[0] if job.plan.notes else "")
     if job.hours is None:
         raise PlannerError(f"cannot move {vehicle_id}: {NO_LABOUR_HOURS}",
                            "Set labour_hours on its engine profile or on the vehicle.")
@@ -553,6 +570,10 @@ def _unplaced(ctx: _Context, schedule: SchedulePlan) -> tuple[UnplacedJob, ...]:
     wdays = schedule.working_days
     out = []
     for job in ctx.jobs:
+        if job.status is Status.MISSING_FACT:
+            out.append(UnplacedJob(job, MISSING_FACT, job.plan.notes[0].removeprefix(
+                "missing fact: ")))
+            continue
         if job.hours is None:
             out.append(UnplacedJob(job, NO_LABOUR_HOURS,
                                    "set labour_hours on its engine profile or on the vehicle"))

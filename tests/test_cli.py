@@ -70,6 +70,9 @@ def test_default_order_is_triage_and_due_date_order_is_kept(capsys):
     assert rows[: len(urgent)] == urgent
     losses = [r["expected_loss"] for r in urgent]
     assert losses == sorted(losses, reverse=True)
+    # Then what needs a fact found first (never after a vehicle that is ok).
+    missing = [r for r in rows if r["status"] == "missing-fact"]
+    assert missing and rows[len(urgent): len(urgent) + len(missing)] == missing
     _, out, _ = run(capsys, "list", str(COURIER), "--as-of", AS_OF, "--format", "json",
                     "--sort", "due-date")
     statuses = [r["status"] for r in json.loads(out)["vehicles"]]

@@ -15,7 +15,8 @@ def test_generated_fleets_are_valid_and_cover_every_status():
     fleet = parse_fleet_text(text, "gen.toml")  # the normal loader is the judge of validity
     assert len(fleet.vehicles) == 400
     statuses = Counter(p.status.value for p in assess_fleet_plan(fleet, AS_OF).plans)
-    assert set(statuses) == {"overdue", "no-record", "near-limit", "ok", "on-condition"}
+    assert set(statuses) == {"overdue", "no-record", "missing-fact", "near-limit", "ok",
+                               "on-condition"}
     jobs = [j for v in fleet.vehicles for j in v.belt_jobs]
     assert any(j.reason.value == "failed" for j in jobs)
 

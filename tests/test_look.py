@@ -95,9 +95,9 @@ def test_the_words_and_symbols_carry_the_meaning_without_colour():
     # With every style stripped, each status still reads as its own symbol and word.
     plain = {s: look.status_text(s).plain for s in look.STATUS_STYLE}
     assert plain == {"overdue": "✗ overdue", "no-record": "? no-record",
-                     "near-limit": "! near-limit", "ok": "✓ ok",
-                     "on-condition": "~ on-condition"}
-    assert len({p.split()[0] for p in plain.values()}) == len(plain)  # five distinct symbols
+                     "missing-fact": "∅ missing-fact", "near-limit": "! near-limit",
+                     "ok": "✓ ok", "on-condition": "~ on-condition"}
+    assert len({p.split()[0] for p in plain.values()}) == len(plain)  # six distinct symbols
 
 
 def test_a_tag_status_draws_its_life_bar_in_the_tag_colour():

@@ -133,7 +133,8 @@ def test_severe_duty_without_a_severe_interval_says_so():
     """)
     assert p.spec.interval_basis is IntervalBasis.SEVERE_UNKNOWN
     assert p.spec.interval_distance == 100000
-    assert any("no severe-service interval is known" in n for n in p.notes)
+    assert p.status is Status.MISSING_FACT
+    assert "the maker's severe-service interval" in p.notes[0]
 
 
 def test_unknown_history_is_no_record():

@@ -38,8 +38,9 @@ async def test_open_shows_every_vehicle_in_triage_order_with_a_summary():
         assert listed_ids(app) == TRIAGE_IDS  # the engine's order, untouched
         summary = text_of(app.screen.query_one("#summary"))
         assert "Plan date 2026-12-07" in summary
-        # KL-05 is near-limit: due by distance on 2027-02-01, 56 days ahead (<= 60).
-        for words in ("4 overdue", "1 no-record", "5 near-limit", "4 ok", "2 on-condition"):
+        # KL-05 (severe duty, no severe interval known) is missing-fact, no longer ok.
+        for words in ("4 overdue", "1 no-record", "1 missing-fact", "4 near-limit", "4 ok",
+                      "2 on-condition"):
             assert words in summary
         # Status and consequence read as words and symbols, not only colours.
         table = app.main_screen().table
@@ -85,7 +86,8 @@ async def test_filter_by_status_and_consequence():
         assert listed_ids(app) == ["KL-01", "KL-02", "KL-03"]
         assert "showing 3" in text_of(app.screen.query_one("#summary"))
         assert "overdue · engine-damage" in text_of(app.screen.query_one("#viewinfo"))
-        # "Needs action" keeps overdue, no-record and near-limit, in triage order.
+        # "Needs action" keeps overdue, no-record, missing-fact (KL-05: severe duty, no severe
+        # interval known) and near-limit, in triage order.
         await pilot.press("f")
         await until(pilot, lambda: screen_name(app) == "FilterDialog")
         await pilot.click("#f-action")

@@ -6,6 +6,7 @@ import tomllib
 
 from textual.widgets import Select
 
+from planner.plan import Status
 from tests.test_tui_support import (
     SMALL,
     copy_example,
@@ -124,8 +125,10 @@ async def test_belt_job_rejected_before_service_and_without_odometer(tmp_path):
         await open_form(pilot, "j")
         fill(app, date="2019-01-01", odometer="5000")
         await apply(pilot, closes=False)
+        # Before service is accepted only as a previous owner's job with an odometer at most
+        # the in-service one: 5,000 km is above KL-01's.
         assert "before the vehicle entered service" in problems_text(app)
-        assert "-invalid" in app.screen.query_one("#f-date").classes
+        assert "-invalid" in app.screen.query_one("#f-odometer").classes
         fill(app, date="2026-12-07", odometer="")
         await apply(pilot, closes=False)
         assert "odometer" in problems_text(app) and "required" in problems_text(app)
@@ -154,15 +157,17 @@ async def test_add_vehicle_valid_and_a_duplicate_id_rejected(tmp_path):
 
 
 @sync
-async def test_add_vehicle_without_engine_needs_a_drive(tmp_path):
+async def test_add_vehicle_without_engine_or_drive_is_added_as_missing_fact(tmp_path):
+    # A missing drive type is a warning, not an error: the vehicle is planned as missing-fact
+    # (never ok) and the form's message says what is missing.
     app = make_app(copy_example(tmp_path))
     async with app.run_test(size=SMALL) as pilot:
         await opened(pilot)
         await open_form(pilot, "a")
         fill(app, id="KL-30", in_service="2026-01-05")
-        await apply(pilot, closes=False)
-        assert "no drive type given" in problems_text(app)
-        assert "-invalid" in app.screen.query_one("#f-drive").classes
+        await apply(pilot)
+        assert app.session.plan_of("KL-30").status is Status.MISSING_FACT
+        assert "Vehicle added" in app.last_message and "no drive type" in app.last_message
 
 
 @sync

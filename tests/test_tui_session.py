@@ -59,11 +59,11 @@ def test_records_are_the_clis(session):
     assert session.records() == export.assessment_records(
         assess_fleet_plan(session.fleet, AS_OF))
     # Courier example on 2026-12-07: overdue KL-01, KL-02 (distance), KL-03, KL-08 (age);
-    # no record KL-07; near the limit KL-16, KL-10, KL-09 (under 5,000 km left) and KL-15 (age
-    # limit 2027-01-14, 38 days <= 60); ok KL-04, KL-05 (about 8,700 km and 79 days left),
-    # KL-06, KL-11, KL-14; chain KL-12 and gear KL-13 on condition.
+    # no record KL-07; a fact missing KL-05 (severe duty, no severe interval known); near the
+    # limit KL-16, KL-10, KL-09 (under 5,000 km left) and KL-15 (age limit 2027-01-14, 38 days
+    # <= 60); ok KL-04, KL-06, KL-11, KL-14; chain KL-12 and gear KL-13 on condition.
     assert summary_text(session.records()) == (
-        "16 vehicles: 4 overdue, 1 no-record, 4 near-limit, 5 ok, 2 on-condition")
+        "16 vehicles: 4 overdue, 1 no-record, 1 missing-fact, 4 near-limit, 4 ok, 2 on-condition")
 
 
 def test_save_refuses_when_the_file_changed(session):

@@ -28,7 +28,7 @@ import pytest
 from planner.cli import main
 from planner.export import CAUTION
 from planner.fileio import load_fleet
-from planner.week import plan_week
+from planner.week import MISSING_FACT, plan_week
 from planner.week_export import (
     CALL_FIELDS,
     JOB_FIELDS,
@@ -240,7 +240,7 @@ def test_csv_golden(week):
 def test_json(week):
     doc = json.loads(to_json_text(week))  # standard library reader
     assert (doc["as_of"], doc["start"], doc["end"]) == ("2026-12-04", "2026-12-07", "2026-12-13")
-    assert doc["included_statuses"] == ["overdue", "no-record", "near-limit"]
+    assert doc["included_statuses"] == ["overdue", "no-record", "missing-fact", "near-limit"]
     assert doc["totals"]["labour_hours"] == 22.5 and doc["totals"]["total_cost"] == 2400.0
     # Full precision in JSON (never rounded to a reassuring zero).
     assert doc["totals"]["expected_loss_removed"] == week.expected_loss_removed
@@ -354,7 +354,8 @@ def test_garage_example_week():
     # The week a workshop manager checked by hand (see the week-plan note): planned Fri 4 Dec.
     week = plan_week(load_fleet(GARAGE).fleet, FRI)
     assert week.start == dt.date(2026, 12, 7)
-    assert week.unplaced == ()
+    # The taxi MR-1118 is on severe duty with no severe interval known: listed, never booked.
+    assert [(u.job.vehicle_id, u.reason) for u in week.unplaced] == [("MR-1118", MISSING_FACT)]
     away = week.booking("MR-1103")  # the customer is away 7-9 December
     assert away is not None and away.first_day == dt.date(2026, 12, 10)
     for b in week.bookings:

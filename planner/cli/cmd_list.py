@@ -26,6 +26,7 @@ FORMATS = ("table", "csv", "json", "markdown")
 STATUS_STYLE = {
     "overdue": "bold #ffffff on #a8325f", "no-record": "bold #ffffff on #5646a8",
     "near-limit": "bold #3d8fd1", "ok": "", "on-condition": "italic #4f9a94",
+    "missing-fact": "bold #ffffff on #8a5a00",
 }
 CONSEQUENCE_STYLE = {"engine-damage": "bold #c9622a", "unverified": "#9a6fd0",
                      "breakdown": "#a08a5a"}

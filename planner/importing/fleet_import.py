@@ -17,7 +17,7 @@ from planner.importing.csvtable import Decoded, Row, RowProblem
 from planner.importing.fields import FLEET_FIELDS, VEHICLE_ORDER
 from planner.importing.profiles import make_profiles, profile_report
 from planner.importing.sheet import Sheet, column_report, open_sheet, read_row
-from planner.validate import build_fleet
+from planner.validate import build_fleet, fleet_warnings
 
 
 @dataclass(frozen=True)
@@ -92,6 +92,7 @@ def import_fleet(text: str, *, source: str, when: dt.datetime | dt.date,
                            err.message, err.problems) from None
     report += profile_report(groups, kept, engine_column, group_profiles)
     report += [f"  warning: {w}" for w in warnings]
+    report += [f"  {line}" for p in fleet_warnings(fleet) for line in p.render().splitlines()]
     report.append(f"Vehicles: {len(vdicts)} imported, {left_out} row"
                   f"{'s' * (left_out != 1)} left out")
     report += [f"  {p.render()}" for p in problems]

@@ -15,6 +15,7 @@ from planner.importing.csvtable import Decoded, Row, RowProblem
 from planner.importing.fields import READING_FIELDS
 from planner.importing.sheet import column_report, open_sheet, read_row
 from planner.importing.values import grouped
+from planner.validate import repeated_job_warnings
 
 
 @dataclass(frozen=True)
@@ -145,6 +146,9 @@ def import_readings(csv_text: str, fleet: Fleet, fleet_text: str, *, source: str
                for r in added]
     report += [f"  skipped: {p.render()}" for p in skipped]
     report += [f"  rejected: {p.render()}" for p in rejected]
+    for index, v in enumerate(fleet.vehicles):  # records the import stands on, said out loud
+        report += [f"  warning: vehicle {v.id}, field {p.field}: {p.message}; fix: {p.hint}"
+                   for p in repeated_job_warnings(index, v, fleet.unit)]
     return ReadingsImport(tuple(added), tuple(skipped), tuple(rejected), text, tuple(report))
 
 

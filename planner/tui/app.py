@@ -32,7 +32,7 @@ from planner.tui.screens.error import ErrorScreen
 from planner.tui.screens.form import FormScreen
 from planner.tui.screens.help import AboutScreen, HelpScreen
 from planner.tui.screens.main import LoadingScreen, MainScreen
-from planner.tui.session import Reading, Session
+from planner.tui.session import Reading, Session, warnings_notice
 from planner.tui.view import TRIAGE, View
 from planner.tui.widgets.bars import TitleBar
 from planner.tui.widgets.fleet_table import TableRows, next_sort, prepare_rows
@@ -58,6 +58,7 @@ class BeltplanApp(EditActions, FileActions, ImportActions, InUseActions, WeekAct
         self.init_in_use(in_use)
         self.session = session
         self.last_message = ""  # the last thing the app told the user (tests read it)
+        self.load_notice = ""  # the warnings of the file as last read, as told after the read
         self.reading = False  # the file is being read in a worker
         self.planning = False  # the current text is being planned in a worker
         self._rows: TableRows | None = None  # the fleet table's cells for the latest plan
@@ -158,6 +159,10 @@ class BeltplanApp(EditActions, FileActions, ImportActions, InUseActions, WeekAct
             self.say(f"Read {session.path} again." if session.ok else
                      f"{session.path} still has problems.",
                      "information" if session.ok else "error")
+        self.load_notice = warnings_notice(session.warnings) if session.ok and \
+            session.warnings else ""
+        if self.load_notice:  # beside, not instead of, what the read itself says
+            self.notify(self.load_notice, severity="warning", markup=False, timeout=12)
         self.settle_in_use(session, marked)
         self.keep_in_cache()
 

@@ -27,6 +27,9 @@ def _specs() -> ModuleType:
     return form_specs
 
 
+NEW_VEHICLE = "\0new"  # `apply_edit`: the vehicle an edit added (no id holds a control character)
+
+
 class EditActions:
     """Mixed into `BeltplanApp`."""
 
@@ -37,20 +40,33 @@ class EditActions:
             self.say("No vehicle is highlighted.", "warning")
         return plan
 
-    def apply_edit(self: BeltplanApp, text: str | None, what: str) -> None:
-        """Make an edit's text current (it was checked by the form) and redraw."""
+    def apply_edit(self: BeltplanApp, text: str | None, what: str,
+                   vehicle_id: str | None = None) -> None:
+        """Make an edit's text current (it was checked by the form) and redraw; say what new
+        warning it brought to `vehicle_id` (NEW_VEHICLE: the vehicle it added), if any: a belt
+        job recorded twice, a fact missing."""
         if text is None:
             return
+        before = self.session.fleet
         try:
             self.session.apply(text, what)
         except PlannerError as err:  # the form checks first; this is a last line of defence
             self.say(err.render(), "error")
             return
         self.refresh_views()
-        self.say(f"{what} (not saved yet).")
+        if vehicle_id == NEW_VEHICLE and before is not None and self.session.fleet is not None:
+            old = {v.id for v in before.vehicles}
+            vehicle_id = next((v.id for v in self.session.fleet.vehicles if v.id not in old),
+                              None)
+        found = self.session.new_warnings(before, vehicle_id) if vehicle_id else []
+        if found:
+            self.say(f"{what} (not saved yet). Warning: {found[0].message}; fix: "
+                     f"{found[0].hint}", "warning")
+        else:
+            self.say(f"{what} (not saved yet).")
 
-    def _form(self: BeltplanApp, spec: Any, what: str) -> None:
-        self.push_screen(FormScreen(spec), lambda text: self.apply_edit(text, what))
+    def _form(self: BeltplanApp, spec: Any, what: str, vehicle_id: str | None = None) -> None:
+        self.push_screen(FormScreen(spec), lambda text: self.apply_edit(text, what, vehicle_id))
 
     def action_add_reading(self: BeltplanApp) -> None:
         plan = self._plan()
@@ -61,10 +77,11 @@ class EditActions:
     def action_record_job(self: BeltplanApp) -> None:
         plan = self._plan()
         if plan is not None:
-            self._form(_specs().job_form(self.session, plan), f"Belt job recorded on {plan.id}")
+            self._form(_specs().job_form(self.session, plan), f"Belt job recorded on {plan.id}",
+                       plan.id)
 
     def action_add_vehicle(self: BeltplanApp) -> None:
-        self._form(_specs().vehicle_form(self.session, None), "Vehicle added")
+        self._form(_specs().vehicle_form(self.session, None), "Vehicle added", NEW_VEHICLE)
 
     def action_edit_vehicle(self: BeltplanApp) -> None:
         plan = self._plan()

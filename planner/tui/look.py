@@ -16,17 +16,19 @@ from textual.theme import Theme
 STYLES = Path(__file__).resolve().parent
 
 STATUS_SYMBOL = {
-    "overdue": "✗", "no-record": "?", "near-limit": "!", "ok": "✓", "on-condition": "~",
+    "overdue": "✗", "no-record": "?", "missing-fact": "∅", "near-limit": "!", "ok": "✓",
+    "on-condition": "~",
 }
 # The status colours are beltplan's own "workshop tag" scheme, not a traffic light: the two
-# statuses that need a job now are filled tags (raspberry, indigo) in light bold letters, the
-# warning band is a petrol blue, a drive with no interval is teal, and "ok" carries no colour at
-# all. Every tag has its own background and every plain colour has a contrast of at least 3:1
+# statuses that need a job now and the one that needs a fact found are filled tags (raspberry,
+# indigo, ochre) in light bold letters, the warning band is a petrol blue, a drive with no
+# interval is teal, and "ok" carries no colour at all. Every tag has its own background and every plain colour has a contrast of at least 3:1
 # on the theme's background and on white (tests/test_look.py), and the symbol and word say it
 # all without colour.
 STATUS_STYLE = {
     "overdue": Style(color="#ffffff", bgcolor="#a8325f", bold=True),
     "no-record": Style(color="#ffffff", bgcolor="#5646a8", bold=True),
+    "missing-fact": Style(color="#ffffff", bgcolor="#8a5a00", bold=True),
     "near-limit": Style(color="#3d8fd1", bold=True),
     "ok": Style(),
     "on-condition": Style(color="#4f9a94", italic=True),
@@ -43,6 +45,7 @@ CONSEQUENCE_STYLE = {
 WHAT_IT_MEANS = {
     "overdue": "past a limit: replace now; it can stop the engine without warning",
     "no-record": "no belt record: replace now, as on acquisition",
+    "missing-fact": "a fact needed to plan it is missing: find it; never read as safe",
     "near-limit": "within the warning distance or days: book it before the due date",
     "ok": "not yet due",
     "on-condition": "chain or gear: no fixed interval",

@@ -21,7 +21,7 @@ from pathlib import Path
 from typing import Any
 
 from planner import export, fleetcache
-from planner.errors import PlannerError
+from planner.errors import PlannerError, Problem
 from planner.fileio import (
     LoadedFleet,
     backup_path,
@@ -29,12 +29,14 @@ from planner.fileio import (
     load_fleet,
     parse_fleet_text,
     save_fleet_text,
+    warnings_of,
     write_atomic,
 )
 from planner.fleet import Fleet
 from planner.plan import Status, VehiclePlan
 from planner.reparse import reparse_fleet_text
 from planner.risk import FleetAssessment, assess_fleet_plan
+from planner.validate import vehicle_warnings
 
 EXPORT_FORMATS: dict[str, str] = {"csv": "csv", "json": "json", "markdown": "md"}
 
@@ -68,6 +70,7 @@ class Reading:
     loaded: LoadedFleet | None
     error: PlannerError | None = None
     planned: Planned | None = None
+    warnings: tuple[Problem, ...] = ()  # the file loads; facts missing or doubtful
 
 
 @dataclass(frozen=True)
@@ -88,6 +91,7 @@ class Session:
         self.as_of = as_of
         self.loaded: LoadedFleet | None = None
         self.error: PlannerError | None = None
+        self.warnings: tuple[Problem, ...] = ()  # of the file as last read
         self.text = ""
         self.fleet: Fleet | None = None
         self.history: list[Change] = []
@@ -105,9 +109,21 @@ class Session:
         """Read (and plan) the file without changing the session: safe in a worker thread."""
         try:
             loaded = load_fleet(self.path, known=self._cached)
-            return Reading(loaded, None, plan(loaded.fleet, self.as_of) if with_plan else None)
+            return Reading(loaded, None, plan(loaded.fleet, self.as_of) if with_plan else None,
+                           tuple(warnings_of(loaded)))
         except PlannerError as err:
             return Reading(None, err)
+
+    def new_warnings(self, before: Fleet | None, vehicle_id: str) -> list[Problem]:
+        """Warnings of one vehicle that an edit brought (e.g. a belt job recorded twice)."""
+        def of(fleet: Fleet | None) -> list[Problem]:
+            if fleet is None:
+                return []
+            hit = next(((i, v) for i, v in enumerate(fleet.vehicles) if v.id == vehicle_id),
+                       None)
+            return [] if hit is None else vehicle_warnings(hit[0], hit[1], fleet)
+        old = {p.message for p in of(before)}
+        return [p for p in of(self.fleet) if p.message not in old]
 
     def _cached(self, digest: str) -> Fleet | None:
         fleet = fleetcache.get(digest)  # never raises: a cache problem means "not cached"
@@ -120,6 +136,7 @@ class Session:
         self.history.clear()
         self._cache = None
         self.loaded, self.error = reading.loaded, reading.error
+        self.warnings = reading.warnings
         if reading.loaded is None:
             self.fleet, self.text = None, ""
             return False
@@ -307,6 +324,16 @@ class Session:
                                "Choose another file name for the export.")
         write_atomic(path, self.export_text(records, fmt).encode("utf-8"))
         return path
+
+
+def warnings_notice(found: Sequence[Problem], shown: int = 3) -> str:
+    """The short notice after a read: how many warnings and whose (`beltplan check` and each
+    vehicle's notes say the rest)."""
+    n = len(found)
+    who = ", ".join(f"{p.vehicle} ({p.field})" if p.vehicle else p.field for p in found[:shown])
+    more = f" and {n - shown} more" if n > shown else ""
+    return (f"{n} warning{'s' * (n != 1)}: {who}{more}. A fact missing shows as missing-fact, "
+            "never ok; `beltplan check` lists each with its fix.")
 
 
 def status_counts(records: Sequence[dict[str, Any]]) -> list[tuple[str, int]]:

@@ -117,6 +117,7 @@ class FilterDialog(Popup[tuple[frozenset[str], frozenset[str]]]):
         if event.button.id == "f-all":
             self.dismiss((frozenset(), frozenset()))
         elif event.button.id == "f-action":
-            self.dismiss((frozenset({"overdue", "no-record", "near-limit"}), frozenset()))
+            self.dismiss((frozenset({"overdue", "no-record", "missing-fact", "near-limit"}),
+                          frozenset()))
         else:
             self.action_apply()

@@ -104,17 +104,24 @@ def engine(plan: VehiclePlan, fleet: Fleet) -> Table:
                                               " (not recorded)")
     pairs: list[tuple[str, Text | str]] = [
         ("profile", name),
-        ("drive", f"{spec.drive.value}, fuel {spec.fuel.value if spec.fuel else '–'}"),
+        ("drive", f"{spec.drive_word}, fuel {spec.fuel.value if spec.fuel else '–'}"),
         ("interference", interference),
         ("duty", v.duty.value),
     ]
-    if spec.drive.has_interval:
+    if spec.has_interval:
         why = {IntervalBasis.NORMAL: "normal duty: the maker's normal interval",
                IntervalBasis.SEVERE: "severe duty: the severe-service interval",
                IntervalBasis.SEVERE_UNKNOWN: "severe duty, but no severe-service interval is "
-               "known: the normal one is used (check the maker's schedule)"}[spec.interval_basis]
-        pairs.append(("interval", f"{_km(spec.interval_distance, unit)} or "
-                      f"{spec.interval_months} months, whichever comes first"))
+               "known: the normal one is used (check the maker's schedule)",
+               IntervalBasis.SEVERE_PARTIAL: "severe duty: a severe-service figure for one "
+               "limit only, the normal one for the other (see the notes)"}[spec.interval_basis]
+        months = "age not known" if spec.interval_months is None else \
+            f"{spec.interval_months} months"
+        distance = "distance not known" if spec.interval_distance is None else \
+            _km(spec.interval_distance, unit)
+        pairs.append(("interval", "not known" if spec.interval_months is None and
+                      spec.interval_distance is None else
+                      f"{distance} or {months}, whichever comes first"))
         pairs.append(("why", why))
     else:
         pairs.append(("interval", "none: replaced on condition"))
@@ -151,8 +158,11 @@ def install_and_usage(plan: VehiclePlan, unit: str) -> Table:
 
 
 def limits(plan: VehiclePlan, unit: str, as_of: dt.date) -> RenderableType:
-    if not plan.spec.drive.has_interval:
+    if not plan.spec.has_interval:
         return Text("no distance or age limit: this drive is replaced on condition", style=DIM)
+    if plan.due_date is None and plan.spec.missing:
+        return Text("no limits can be dated while a fact is missing: see the notes",
+                    style=DIM)
     if plan.due_date is None:
         return Text("no limits can be dated without a record of the belt now running",
                     style=DIM)
@@ -170,6 +180,8 @@ def limits(plan: VehiclePlan, unit: str, as_of: dt.date) -> RenderableType:
     days = f"{(time_due - as_of).days:,} days" if time_due else "–"
     table.add_row("age", f"{plan.spec.interval_months} months",
                   time_due.isoformat() if time_due else "–", days, decides[Limit.TIME])
+    if plan.status is Status.MISSING_FACT:  # severe duty, no severe figure: the normal ones
+        table.caption = "normal interval: the latest these can be (a severe one is shorter)"
     return table
 
 
@@ -183,6 +195,9 @@ def odometer(plan: VehiclePlan, unit: str, as_of: dt.date, width: int) -> Text:
 
 
 def risk(record: dict[str, Any], describe: str) -> RenderableType:
+    if record.get("status") == Status.MISSING_FACT.value:
+        return Text("no risk figure while a fact is missing: the interval in force is not "
+                    "known (see the notes)", style=DIM)
     if record.get("p_fail_horizon") is None and record.get("expected_loss") is None:
         return Text("the risk model does not apply to this drive", style=DIM)
     pairs: list[tuple[str, Text | str]] = [
