@@ -22,9 +22,9 @@ STATUS_SYMBOL = {
 # The status colours are beltplan's own "workshop tag" scheme, not a traffic light: the two
 # statuses that need a job now and the one that needs a fact found are filled tags (raspberry,
 # indigo, ochre) in light bold letters, the warning band is a petrol blue, a drive with no
-# interval is teal, and "ok" carries no colour at all. Every tag has its own background and every plain colour has a contrast of at least 3:1
-# on the theme's background and on white (tests/test_look.py), and the symbol and word say it
-# all without colour.
+# interval is teal, and "ok" carries no colour at all. Every tag has its own background and
+# every plain colour has a contrast of at least 3:1 on the theme's background and on white
+# (tests/test_look.py), and the symbol and word say it all without colour.
 STATUS_STYLE = {
     "overdue": Style(color="#ffffff", bgcolor="#a8325f", bold=True),
     "no-record": Style(color="#ffffff", bgcolor="#5646a8", bold=True),
