@@ -512,6 +512,12 @@ def plan_vehicle(vehicle: Vehicle, fleet: Fleet, as_of: dt.date,
         due, deciding = distance_due, Limit.DISTANCE
     else:
         due, deciding = time_due, Limit.TIME
+    limit_day = due  # the limit's own date, for the deciding note
+    if due < vehicle.in_service:  # a previous owner's belt, past its limit before we had it
+        limit = "age" if deciding is Limit.TIME else "distance"
+        notes.append(f"the {limit} limit was reached on {due}, before the vehicle "
+                     f"entered service: due from {vehicle.in_service}, the day it did")
+        due = vehicle.in_service
     days_left = (due - as_of).days
 
     if due <= as_of or remaining <= tolerance:
@@ -523,7 +529,7 @@ def plan_vehicle(vehicle: Vehicle, fleet: Fleet, as_of: dt.date,
         status = Status.OK
 
     on_record = use.last_odometer is not None and use.last_odometer >= due_odometer - tolerance
-    notes.insert(0, _deciding_note(deciding, status, spec, install, due, remaining, unit,
+    notes.insert(0, _deciding_note(deciding, status, spec, install, limit_day, remaining, unit,
                                    within_records=on_record))
     if status is Status.OVERDUE:
         notes.insert(1, "past its interval: treat it as at risk of a sudden engine stop and "
@@ -574,7 +580,8 @@ def _plan_without_interval(vehicle: Vehicle, spec: Spec, consequence: Consequenc
                           f"{install.date} -> {time_due}")
     if spec.interval_distance is not None:
         due_odometer = install.odometer + spec.interval_distance
-        if use.est_odometer is not None and use.est_odometer >= due_odometer:
+        if (use.est_odometer is not None
+                and use.est_odometer >= due_odometer - distance_tolerance(spec)):
             passed.append(f"distance limit reached: {spec.interval_distance:,.0f} {unit} from "
                           f"{install.odometer:,.0f} {unit} -> {due_odometer:,.0f} {unit}")
     remaining = None

@@ -8,6 +8,7 @@ import math
 
 import numpy as np
 import pytest
+from dateutil.relativedelta import relativedelta
 from hypothesis import HealthCheck, assume, example, given, settings
 from hypothesis import strategies as st
 
@@ -440,3 +441,30 @@ def test_a_fitted_line_past_the_limit_is_a_projection_not_a_record():
     assert not distance_limit_on_record(p)
     assert "projected 2025-12-01" in p.notes[0]
     assert "recorded values" not in p.notes[0]
+
+
+def test_a_previous_owners_belt_past_its_age_limit_is_due_from_entering_service():
+    # A belt job from before the vehicle entered service (a previous owner's receipt): its age
+    # limit, 2017-05-10 + 67 months = 2022-12-10 (dateutil's calendar months), passed before
+    # the vehicle entered service on 2024-03-01. The limit's own date is kept; the vehicle's
+    # due date is never before it entered service, and it is overdue.
+    p = plan_one("""
+        [[vehicles]]
+        id = "P"
+        interference = "interference"
+        drive = "belt"
+        interval_distance = 97300
+        interval_months = 67
+        in_service = 2024-03-01
+        in_service_odometer = 88000
+        readings = [{ date = 2026-11-01, odometer = 120000 }]
+        [[vehicles.belt_jobs]]
+        date = 2017-05-10
+        odometer = 41000
+        reason = "scheduled"
+    """)
+    assert dt.date(2017, 5, 10) + relativedelta(months=67) == dt.date(2022, 12, 10)
+    assert p.time_due_date == dt.date(2022, 12, 10)
+    assert p.due_date == dt.date(2024, 3, 1)
+    assert p.status is Status.OVERDUE and p.deciding_limit is Limit.TIME
+    assert any("before the vehicle entered service" in n for n in p.notes)
