@@ -10,27 +10,14 @@ import csv
 import datetime as dt
 import io
 import json
-import textwrap
 from collections.abc import Iterable, Sequence
 from typing import Any
 
+from planner.caution import CAUTION as CAUTION  # re-exported: the one caution text
+from planner.caution import caution_block as caution_block
 from planner.formats import money, percent
 from planner.plan import VehiclePlan
 from planner.risk import REQUIRED_STATUSES, FleetAssessment, Risk, action_words
-
-# The one caution text: every output a person reads carries it whole (the README quotes it).
-CAUTION = (
-    "The maker's schedule and service information come first: beltplan is a planning aid, not "
-    "a diagnosis, and never a reason to run past a maker's interval. Cam-drive work belongs to "
-    "a qualified technician following the maker's procedure and local rules. A belt past its "
-    "interval can stop the engine without warning — at speed that also takes away power "
-    "steering and brake assist."
-)
-
-
-def caution_block(width: int = 79, lead: str = "Caution: ") -> str:
-    """The caution wrapped for help texts and plain-text files."""
-    return textwrap.fill(lead + CAUTION, width)
 
 # The JSON field names, in order. Scripts rely on them: add, never rename.
 FIELDS: tuple[str, ...] = (

@@ -106,10 +106,12 @@ def test_risk_text_carries_the_caution(capsys):
     assert has_caution(cli(capsys, "risk", str(COURIER), "--as-of", "2026-12-04"))
 
 
-@pytest.mark.parametrize("command", [None, "list", "risk", "week"])
-def test_help_of_every_advising_command_carries_the_caution(capsys, command):
+@pytest.mark.parametrize("args", [["--help"], ["list", "--help"], ["risk", "--help"],
+                                  ["week", "--help"],
+                                  ["fleet.toml", "--help"]])  # the UI launcher's own parser
+def test_help_of_every_advising_command_carries_the_caution(capsys, args):
     with pytest.raises(SystemExit):
-        main(["--help"] if command is None else [command, "--help"])
+        main(args)
     assert has_caution(capsys.readouterr().out)
 
 

@@ -10,7 +10,7 @@ import pytest
 ENGINE = ["planner.fleet", "planner.validate", "planner.plan", "planner.risk",
           "planner.reliability", "planner.schedule", "planner.export", "planner.locate",
           "planner.errors", "planner.units", "planner.week", "planner.week_export",
-          "planner.importer", "planner.edit", "planner.formats"]
+          "planner.importer", "planner.edit", "planner.formats", "planner.caution"]
 FORBIDDEN = ["textual", "planner.tui", "planner.cli", "planner.fileio", "planner.inuse",
              "planner.fleetcache", "planner.reparse", "scipy", "numpy"]
 

@@ -13,6 +13,7 @@ import sys
 from collections.abc import Sequence
 
 from planner import __version__
+from planner.caution import caution_block
 from planner.cli.common import EXIT_USER_ERROR, fail
 from planner.errors import PlannerError
 
@@ -40,8 +41,6 @@ examples:
 
 
 def build_parser() -> argparse.ArgumentParser:
-    from planner.export import caution_block  # the full parser only: the UI starts without it
-
     parser = argparse.ArgumentParser(
         prog="beltplan", description=DESCRIPTION + "\n" + caution_block(), epilog=EPILOG,
         formatter_class=argparse.RawDescriptionHelpFormatter,

@@ -12,6 +12,7 @@ import sys
 from importlib import resources
 from pathlib import Path
 
+from planner.caution import caution_block
 from planner.cli.common import EXIT_USER_ERROR, add_as_of, as_of_or_today
 from planner.errors import PlannerError
 from planner.fileio import write_atomic
@@ -27,7 +28,7 @@ def register(sub: argparse._SubParsersAction) -> None:
         "comments. Press ? in the UI for every key.",
         epilog="examples:\n  beltplan fleet_examples/courier_fleet.toml\n"
         "  beltplan                      opens ./fleet.toml (offers to create it)\n"
-        "  beltplan fleet.toml --as-of 2027-01-31",
+        "  beltplan fleet.toml --as-of 2027-01-31\n\n" + caution_block(),
         formatter_class=argparse.RawDescriptionHelpFormatter,
     )
     p.add_argument("file", nargs="?", default=None,
