@@ -161,6 +161,10 @@ async def test_detail_view_explains_the_most_urgent_vehicle():
         # The severe limits: 96,410 + 88,600 = 185,010 km; 2023-01-16 + 58 months = 2027-11-16.
         assert "185,010 km" in body["d-limits"] and "◀ decides" in body["d-limits"]
         assert "2027-11-16" in body["d-limits"]
+        # Passed between the readings of 2025-12-01 and 2026-06-01, said below the table; no
+        # figure in it is cut short.
+        assert "distance date between two recorded values" in body["d-limits"]
+        assert "…" not in body["d-limits"]
         # Est.: the latest value, 224,300 km on 2026-11-27 (above the fitted line's 223,070),
         # + 10 days x 140.06 km/day (weighted fit; numpy.polyfit gives the same) = 225,701 km;
         # (225,701 - 96,410) / 88,600 = 146 %.

@@ -172,8 +172,12 @@ def limits(plan: VehiclePlan, unit: str, as_of: dt.date) -> RenderableType:
     dist_date = plan.distance_due_date.isoformat() if plan.distance_due_date else "–"
     left = _km(plan.distance_remaining, unit)
     decides = {limit: "◀ decides" if plan.deciding_limit is limit else "" for limit in Limit}
+    captions = []
     if plan.distance_due_date:  # passed between two recorded values, or a projection
-        dist_date += " (on record)" if distance_limit_on_record(plan) else " (projected)"
+        dist_date += "*"
+        captions.append("* distance date " + (
+            "between two recorded values" if distance_limit_on_record(plan)
+            else "projected from the usage fit"))
     table.add_row("distance", _km(plan.due_odometer, unit), dist_date, left,
                   decides[Limit.DISTANCE])
     time_due = plan.time_due_date
@@ -181,8 +185,9 @@ def limits(plan: VehiclePlan, unit: str, as_of: dt.date) -> RenderableType:
     table.add_row("age", f"{plan.spec.interval_months} months",
                   time_due.isoformat() if time_due else "–", days, decides[Limit.TIME])
     if plan.status is Status.MISSING_FACT:  # severe duty, no severe figure: the normal ones
-        table.caption = "normal interval: the latest these can be (a severe one is shorter)"
-    return table
+        captions.append("normal interval: the latest these can be (a severe one is shorter)")
+    # Below the table, not in its cells: a narrow pane then cuts no figure short.
+    return Group(table, Text("\n".join(captions), style=DIM)) if captions else table
 
 
 def life(plan: VehiclePlan) -> Text:
