@@ -40,9 +40,8 @@ FLEET_FIT = "fleet fit"
 REQUIRED_STATUSES = (Status.OVERDUE, Status.NO_RECORD)
 EXTRAPOLATION_NOTE = ("past the maker's interval the risk model extrapolates beyond the maker's "
                       "data: its figures are no reason to wait; replace now")
-FIT_INTERVAL_NOTE = ("This fleet's fit implies a longer belt life than the maker's interval: "
-                     "statuses still follow the maker's interval, and the fit never lengthens "
-                     "it.")
+FIT_INTERVAL_NOTE = ("The fleet fit changes only the probabilities: statuses still follow the "
+                     "maker's interval, and the fit never lengthens it.")
 
 
 def is_required(status: Status) -> bool:
@@ -56,6 +55,8 @@ def action_words(p: VehiclePlan) -> str | None:
         return "replace now"
     if p.status is Status.NO_RECORD:
         return "replace now"
+    if p.status is Status.MISSING_FACT:  # the interval in force is not known: it may be due
+        return "find fact now"
     if p.status is Status.NEAR_LIMIT:
         return "book soon"
     return None
@@ -89,9 +90,9 @@ class RiskModel:
         return reliability.weibull_cdf(1.0, self.beta, self.eta)
 
     def interval_note(self) -> str | None:
-        """For a fleet fit in force by which most belts would outlast the maker's interval
-        (median life past it): the fit never lengthens the interval."""
-        if self.basis == FLEET_FIT and self.share_failed_at_interval_now < 0.5:
+        """For a fleet fit in force: it never lengthens the maker's interval (said whatever the
+        fit, so that no fit, however long its life, reads as leave to run past)."""
+        if self.basis == FLEET_FIT:
             return FIT_INTERVAL_NOTE
         return None
 

@@ -113,7 +113,7 @@ class WeekJob:
 
     @property
     def action(self) -> str:
-        """What to do, led by the action: 'replace now' or 'book soon'."""
+        """What to do, led by the action: 'replace now', 'find fact now' or 'book soon'."""
         return action_words(self.plan) or "book soon"
 
     @property

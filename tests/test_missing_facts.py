@@ -388,3 +388,26 @@ def test_warnings_located_vehicle_by_vehicle_agree_with_the_whole_text(seed):
     whole = locate(text)
     plain = sorted(position(whole, p.path)[0] for p in fleet_warnings(fleet))
     assert found and [p.line for p in found] == plain
+
+
+def test_a_missing_fact_leads_with_finding_it():
+    from planner.export import CAUTION
+    from planner.risk import action_words
+    from planner.tui.widgets import detail_parts
+
+    fleet = make_fleet("""
+[[vehicles]]
+id = "SEV"
+engine = "plain"
+duty = "severe"
+in_service = 2023-01-01
+""", NO_SEVERE)
+    p = plan_of(fleet, "SEV")
+    assert p.status is Status.MISSING_FACT
+    # The action column and the detail lead with finding the fact; the caution goes with it.
+    assert action_words(p) == "find fact now"
+    todo = detail_parts.what_to_do(p)
+    assert todo is not None and todo.plain.startswith("Find the missing fact now")
+    assert CAUTION in todo.plain
+    # The week's views (board, not-placed list, call list) say the same, never "book soon".
+    assert plan_week(fleet, AS_OF).job("SEV").action == "find fact now"

@@ -83,6 +83,9 @@ def what_to_do(plan: VehiclePlan) -> Text | None:
     elif plan.status is Status.NO_RECORD:
         lines = ["Replace now: no record of the belt now running. Common practice is to "
                  "replace it on acquisition rather than trust the odometer."]
+    elif plan.status is Status.MISSING_FACT:
+        lines = ["Find the missing fact now (the first note says which), then book the job: "
+                 "until it is known, the belt may already be due. Never read it as safe."]
     elif plan.status is Status.NEAR_LIMIT and plan.due_date is not None:
         lines = [f"Book the job before {plan.due_date} ({plan.days_remaining} days)."]
     else:
