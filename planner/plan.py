@@ -148,10 +148,11 @@ class Usage:
     line_odometer: float | None = None
 
     def odometer_on(self, day: dt.date) -> float | None:
-        """The projected odometer on `day` (on or after `last_date`)."""
+        """The projected odometer on `day` (on or after `last_date`). On the latest value's own
+        day it is that value: a projection never contradicts a reading."""
         if self.last_odometer is None or self.last_date is None:
             return None
-        if self.daily_distance is None or self.line_odometer is None:
+        if self.daily_distance is None or self.line_odometer is None or day <= self.last_date:
             return self.last_odometer
         line = self.line_odometer + self.daily_distance * (day - self.last_date).days
         return max(line, self.last_odometer)
@@ -355,10 +356,12 @@ def distance_due_date(vehicle: Vehicle, install: Install, use: Usage, due_odomet
         return None
     if use.last_odometer >= target:
         due = _passed_between(odometer_points(vehicle, as_of), install, target)
-        return max(due, install.date, vehicle.in_service)
+        return max(due, install.date)  # the in-service day: `plan_vehicle`, for both limits
     last = use.last_date
-    if (use.odometer_on(last) or 0.0) >= target:  # the fitted line is past it already
-        return last
+    if (use.odometer_on(last) or 0.0) >= target:
+        # The fitted line is past it already (use has slowed), but the latest reading is not:
+        # the first day after that reading, never a day whose own reading says otherwise.
+        return last + dt.timedelta(days=1)
     if not use.daily_distance or use.line_odometer is None:
         return None
     days = (target - use.line_odometer) / use.daily_distance
@@ -512,12 +515,17 @@ def plan_vehicle(vehicle: Vehicle, fleet: Fleet, as_of: dt.date,
         due, deciding = distance_due, Limit.DISTANCE
     else:
         due, deciding = time_due, Limit.TIME
-    limit_day = due  # the limit's own date, for the deciding note
-    if due < vehicle.in_service:  # a previous owner's belt, past its limit before we had it
-        limit = "age" if deciding is Limit.TIME else "distance"
-        notes.append(f"the {limit} limit was reached on {due}, before the vehicle "
-                     f"entered service: due from {vehicle.in_service}, the day it did")
-        due = vehicle.in_service
+    limit_day = due  # the deciding limit's own date, for the deciding note
+    # No due date before the vehicle entered service: a previous owner's belt whose limits
+    # passed before we had it is due from that day; a note keeps each limit's own date.
+    for name, day in (("age", time_due), ("distance", distance_due)):
+        if day is not None and day < vehicle.in_service:
+            notes.append(f"the {name} limit was reached on {day}, before the vehicle entered "
+                         f"service: due from {vehicle.in_service}, the day it did")
+    time_due = max(time_due, vehicle.in_service)
+    if distance_due is not None:
+        distance_due = max(distance_due, vehicle.in_service)
+    due = max(due, vehicle.in_service)
     days_left = (due - as_of).days
 
     if due <= as_of or remaining <= tolerance:
