@@ -107,7 +107,9 @@ def test_risk_text_carries_the_caution(capsys):
 
 
 @pytest.mark.parametrize("args", [["--help"], ["list", "--help"], ["risk", "--help"],
-                                  ["week", "--help"],
+                                  ["week", "--help"], ["check", "--help"],
+                                  ["import", "--help"], ["readings", "--help"],
+                                  ["schema", "--help"],
                                   ["fleet.toml", "--help"]])  # the UI launcher's own parser
 def test_help_of_every_advising_command_carries_the_caution(capsys, args):
     with pytest.raises(SystemExit):

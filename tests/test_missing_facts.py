@@ -411,3 +411,20 @@ in_service = 2023-01-01
     assert CAUTION in todo.plain
     # The week's views (board, not-placed list, call list) say the same, never "book soon".
     assert plan_week(fleet, AS_OF).job("SEV").action == "find fact now"
+
+
+def test_check_gives_the_caution_with_its_warnings_and_reads_the_old_status_word(
+        tmp_path, capsys):
+    from planner.export import CAUTION
+
+    path = tmp_path / "fleet.toml"
+    path.write_text(fleet_text(SEVERE_OK, NO_SEVERE), encoding="utf-8")
+    assert main(["check", str(path)]) == 0
+    out = capsys.readouterr().out
+    assert "warning" in out and CAUTION in out
+    # `--status due-soon`, the status's earlier name, still means near-limit.
+    assert main(["list", str(GARAGE), "--as-of", "2026-12-04", "--status", "due-soon",
+                 "--format", "json"]) == 0
+    import json
+    rows = json.loads(capsys.readouterr().out)["vehicles"]  # reference: `json`
+    assert rows and {r["status"] for r in rows} == {"near-limit"}

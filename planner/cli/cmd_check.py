@@ -4,6 +4,7 @@ from __future__ import annotations
 
 import argparse
 
+from planner.caution import CAUTION, caution_block
 from planner.cli.common import load
 from planner.fileio import warnings_of
 
@@ -16,7 +17,7 @@ def register(sub: argparse._SubParsersAction) -> None:
         "an old key name) follow the \"valid\" line: the file is planned, the vehicles "
         "concerned as needing attention now. Exit status 0 when the file is valid (with or "
         "without warnings), 2 when not.",
-        epilog="example:\n  beltplan check fleet_examples/courier_fleet.toml",
+        epilog="example:\n  beltplan check fleet_examples/courier_fleet.toml\n\n" + caution_block(),
         formatter_class=argparse.RawDescriptionHelpFormatter,
     )
     p.add_argument("file", help="fleet file (TOML)")
@@ -32,8 +33,8 @@ def run(args: argparse.Namespace) -> int:
           f"distances in {fleet.unit}")
     found = warnings_of(loaded)
     if found:
-        print(f"{len(found)} warning{'s' if len(found) != 1 else ''}: planned, but see to these "
-              "(a vehicle with a fact missing is shown as missing-fact, never ok)")
+        print(f"{len(found)} warning{'s' if len(found) != 1 else ''}: planned, but see to these")
         for p in found:
             print(p.render())
+        print("Caution: " + CAUTION)  # the warnings advise: the caution goes with them
     return 0

@@ -8,6 +8,7 @@ import sys
 from pathlib import Path
 
 from planner import importer
+from planner.caution import caution_block
 from planner.errors import PlannerError
 from planner.fileio import backup_path, load_fleet, read_csv, write_atomic
 
@@ -36,7 +37,7 @@ def register(sub: argparse._SubParsersAction) -> None:
         description="Make a new fleet file from a spreadsheet saved as CSV (comma or "
         "semicolon, UTF-8 or Windows-1252). Prints the column mapping and a report, writes the "
         "file, then loads it back to prove it is valid.",
-        epilog=EPILOG.format(fields=fields),
+        epilog=EPILOG.format(fields=fields) + "\n\n" + caution_block(),
         formatter_class=argparse.RawDescriptionHelpFormatter,
     )
     add_csv_options(p)

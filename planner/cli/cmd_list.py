@@ -68,7 +68,9 @@ def run(args: argparse.Namespace) -> int:
     as_of = as_of_or_today(args)
     assessment = assess_fleet_plan(fleet, as_of, args.sort)
     if args.status:
-        wanted = set(pick_words(args.status, [s.value for s in Status], "status"))
+        words = ",".join("near-limit" if w.strip() == "due-soon" else w  # its earlier name
+                         for w in args.status.split(","))
+        wanted = set(pick_words(words, [s.value for s in Status], "status"))
         assessment = dataclasses.replace(
             assessment, plans=tuple(p for p in assessment.plans if p.status.value in wanted))
     plans = assessment.plans

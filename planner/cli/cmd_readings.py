@@ -7,6 +7,7 @@ import datetime as dt
 import sys
 
 from planner import importer, inuse
+from planner.caution import caution_block
 from planner.cli.cmd_import import add_csv_options
 from planner.cli.common import load
 from planner.fileio import backup_path, read_csv, save_fleet_text
@@ -35,7 +36,8 @@ def register(sub: argparse._SubParsersAction) -> None:
         "readings", help="add odometer readings from a CSV export to a fleet file",
         description="Add the odometer readings of a CSV export (fuel card, telematics, "
         "driver's log) to a fleet file, matched by vehicle id.",
-        epilog=EPILOG, formatter_class=argparse.RawDescriptionHelpFormatter,
+        epilog=EPILOG + "\n\n" + caution_block(),
+        formatter_class=argparse.RawDescriptionHelpFormatter,
     )
     p.add_argument("file", help="fleet file (TOML) to update")
     p.add_argument("--from", dest="csv", metavar="EXPORT.csv", required=True,

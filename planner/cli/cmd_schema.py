@@ -5,6 +5,7 @@ from __future__ import annotations
 import argparse
 import json
 
+from planner.caution import caution_block
 from planner.cli.common import emit
 from planner.fleet import json_schema
 
@@ -14,7 +15,7 @@ def register(sub: argparse._SubParsersAction) -> None:
         "schema", help="print the JSON Schema of the fleet file",
         description="Print the JSON Schema of the fleet file, for editors that validate TOML "
         "against a schema.",
-        epilog="example:\n  beltplan schema -o beltplan.schema.json",
+        epilog="example:\n  beltplan schema -o beltplan.schema.json\n\n" + caution_block(),
         formatter_class=argparse.RawDescriptionHelpFormatter,
     )
     p.add_argument("-o", "--output", metavar="OUT", help="write to this file instead of stdout")
