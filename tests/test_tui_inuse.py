@@ -99,7 +99,7 @@ async def test_a_second_window_on_the_same_file_asks_who_has_it(tmp_path, monkey
             labels = [str(b.label) for b in second.screen.query("Button")]
             assert labels == [
                 "Look only: my changes stay here, the file is not written",
-                "Edit here: my saves go to the file, theirs are refused",
+                "Edit here too: whichever window saves second is told the file changed",
                 "Leave it to them: close beltplan now"]
             assert "another computer" not in words
             assert second.screen.focused.id == "ask-read-only"  # the default

@@ -157,7 +157,7 @@ class InUseActions:
         self.last_message = f"{path} is open in {held.who()}."  # the dialog says so
         self.push_screen(InUseDialog("Already open elsewhere", question, [
             ("read-only", "Look only: my changes stay here, the file is not written", "primary"),
-            ("anyway", "Edit here: my saves go to the file, theirs are refused", "warning"),
+            ("anyway", "Edit here too: whichever window saves second is told the file changed", "warning"),
             ("quit", "Leave it to them: close beltplan now", "default"),
         ]), done)
 
