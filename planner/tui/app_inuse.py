@@ -157,7 +157,8 @@ class InUseActions:
         self.last_message = f"{path} is open in {held.who()}."  # the dialog says so
         self.push_screen(InUseDialog("Already open elsewhere", question, [
             ("read-only", "Look only: my changes stay here, the file is not written", "primary"),
-            ("anyway", "Edit here too: whichever window saves second is told the file changed", "warning"),
+            ("anyway", "Edit here too: whichever window saves second is told the file changed",
+             "warning"),
             ("quit", "Leave it to them: close beltplan now", "default"),
         ]), done)
 
