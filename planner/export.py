@@ -141,12 +141,12 @@ def mark(record: dict[str, Any], field: str) -> str | None:
     """How a record's risk figure is marked for people: `EXTRAPOLATED` beside a probability
     past the maker's interval (overdue, no belt record, or passing it within the horizon),
     `REQUIRED` in place of an expected loss for a job that is due; None for a plain figure."""
+    if field == "expected_loss" and record.get("status") in REQUIRED_STATUSES:
+        return REQUIRED  # also where no figure could be made (an interval not known)
     if not record.get("risk_extrapolated"):
         return None
     if field in ("p_fail_horizon", "p_fail_before_due") and record.get(field) is not None:
         return EXTRAPOLATED
-    if field == "expected_loss" and record.get("status") in REQUIRED_STATUSES:
-        return REQUIRED
     return None
 
 

@@ -602,10 +602,17 @@ def _plan_without_interval(vehicle: Vehicle, spec: Spec, consequence: Consequenc
     else:
         status = Status.MISSING_FACT
         notes.insert(0, missing_fact_note(spec))
+    # A known age limit already reached dates the job (never before entering service); a
+    # limit still ahead is no due date while the other is unknown.
+    due = None
+    if time_due is not None and time_due <= as_of:
+        time_due = due = max(time_due, vehicle.in_service)
     return VehiclePlan(vehicle, spec, status, consequence, install, use,
                        due_odometer=due_odometer, distance_remaining=remaining,
-                       time_due_date=time_due, distance_due_date=None, due_date=None,
-                       days_remaining=None, deciding_limit=None, notes=tuple(notes))
+                       time_due_date=time_due, distance_due_date=None, due_date=due,
+                       days_remaining=None if due is None else (due - as_of).days,
+                       deciding_limit=None if due is None else Limit.TIME,
+                       notes=tuple(notes))
 
 
 def _deciding_note(limit: Limit, status: Status, spec: Spec, install: Install, due: dt.date,

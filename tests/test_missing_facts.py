@@ -428,3 +428,25 @@ def test_check_gives_the_caution_with_its_warnings_and_reads_the_old_status_word
     import json
     rows = json.loads(capsys.readouterr().out)["vehicles"]  # reference: `json`
     assert rows and {r["status"] for r in rows} == {"near-limit"}
+
+
+def test_overdue_on_a_known_age_limit_with_the_distance_unknown_is_dated_and_required():
+    from planner.export import assessment_records, cell
+
+    # No interval_distance: 48 months from 2020-01-01 is 2024-01-01 (dateutil's calendar
+    # months), long past on the planning date: overdue, due that day, and its expected-loss
+    # cell says the job is required rather than leaving a dash.
+    fleet = make_fleet("""
+[[vehicles]]
+id = "NODIST"
+drive = "belt"
+interference = "interference"
+interval_months = 48
+in_service = 2020-01-01
+""")
+    p = plan_of(fleet, "NODIST")
+    assert p.status is Status.OVERDUE
+    assert p.due_date == dt.date(2024, 1, 1) and p.days_remaining == (dt.date(2024, 1, 1)
+                                                                       - AS_OF).days
+    record = assessment_records(assess_fleet_plan(fleet, AS_OF))[0]
+    assert cell(record, "expected_loss") == "required"
