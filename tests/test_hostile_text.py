@@ -26,6 +26,7 @@ from hypothesis import strategies as st
 from planner import export, inuse, week_export
 from planner.cli import main
 from planner.safetext import markdown_text, shown
+from tests.test_tui_support import sync as sync_test
 
 HOSTILE = Path(__file__).parent / "data" / "hostile"
 ACCEPTED = HOSTILE / "accepted.toml"
@@ -255,3 +256,81 @@ def test_a_negative_number_stays_a_number(value):
 @pytest.mark.parametrize("text", ["MR-1042", "belt kit, pump", "a = b", "x-1"])
 def test_plain_text_is_left_alone(text):
     assert export.safe_cell(text) == text
+
+
+# -- the terminal UI -------------------------------------------------------------------------------
+
+# In a screenshot (SVG text) a raw control, format or line-separator character would be what
+# the UI sent to the terminal; the visible escapes are plain text.
+RAW = re.compile("[\x00-\x08\x0b-\x1f\x7f-\x9f\u200b-\u200f\u2028-\u202e\u2060-\u2069]")
+
+
+def screen_text_is_inert(app) -> None:
+    svg = app.export_screenshot()
+    hit = RAW.search(svg)
+    assert hit is None, f"{hit.group()!r} in the screen of {type(app.screen).__name__}"
+    # No row of the screen starts with a forged id: a file's line end never makes a row.
+    rows = re.findall(r">([^<>]*)</text>", svg)
+    bad = [r for r in rows if r.replace("\u00a0", " ").lstrip(" │▕|").startswith(FORGED)]
+    assert not bad, bad
+
+
+@sync_test
+async def test_the_ui_shows_the_accepted_corpus_inert_in_every_view(tmp_path):
+    from planner.tui.app import create_app
+    from tests.test_tui_support import opened, screen_name, until
+
+    path = tmp_path / "fleet.toml"
+    shutil.copy(ACCEPTED, path)
+    app = create_app(path, dt.date(2026, 12, 1))
+    async with app.run_test(size=(80, 24)) as pilot:
+        await opened(pilot)
+        assert screen_name(app) == "MainScreen"
+        screen_text_is_inert(app)
+        assert RAW.search(app.title) is None and RAW.search(app.sub_title) is None
+        await pilot.press("enter")  # the detail of the first vehicle (HX-01, overdue)
+        await until(pilot, lambda: screen_name(app) == "DetailScreen", what="detail")
+        await pilot.pause()
+        screen_text_is_inert(app)
+        for _ in range(12):  # scroll through the whole detail
+            await pilot.press("pagedown")
+            screen_text_is_inert(app)
+        await pilot.press("escape")
+        await until(pilot, lambda: screen_name(app) == "MainScreen", what="back")
+        await pilot.press("w")  # the week
+        await until(pilot, lambda: screen_name(app) == "WeekScreen", what="week")
+        await pilot.pause()
+        screen_text_is_inert(app)
+
+
+@sync_test
+async def test_the_ui_error_view_of_the_refused_corpus_is_inert(tmp_path):
+    from planner.tui.app import create_app
+    from tests.test_tui_support import opened, screen_name
+
+    path = tmp_path / "fleet.toml"
+    shutil.copy(REFUSED, path)
+    app = create_app(path, dt.date(2026, 12, 1))
+    async with app.run_test(size=(80, 24)) as pilot:
+        await opened(pilot)
+        assert screen_name(app) == "ErrorScreen"
+        screen_text_is_inert(app)
+        assert RAW.search(app.title) is None and RAW.search(app.sub_title) is None
+
+
+@sync_test
+async def test_the_ui_asks_about_a_planted_marker_with_its_text_escaped(tmp_path):
+    from planner.tui.app import create_app
+    from planner.tui.screens.dialogs import AskDialog
+    from tests.test_tui_support import text_of, until
+
+    path = tmp_path / "fleet.toml"
+    shutil.copy(ACCEPTED, path)
+    plant_marker(path)
+    app = create_app(path, dt.date(2026, 12, 1), in_use=True)
+    async with app.run_test(size=(80, 24)) as pilot:
+        await until(pilot, lambda: isinstance(app.screen, AskDialog), what="the question")
+        words = text_of(app.screen.query_one(".intro"))
+        assert "mallory\\x1b]0;owned\\x07\\nHX-99" in " ".join(words.split())
+        assert "far\\x9b2J\\u202ehost" in words
+        screen_text_is_inert(app)

@@ -17,7 +17,7 @@ from rich.cells import cell_len
 from rich.text import Text
 
 from planner import export
-from planner.tui.look import DIM, consequence_text, literal, status_text
+from planner.tui.look import DIM, consequence_text, field_text, status_text
 
 LABEL_WIDTH = 24
 CELL_PADDING = 1
@@ -55,7 +55,7 @@ def cell(record: dict[str, Any], field: str) -> Text:
         return consequence_text(value)
     if value is None and (field not in MARKED or export.mark(record, field) is None):
         return Text("–", style=DIM)
-    text = literal(export.cell(record, field))
+    text = field_text(export.cell(record, field))
     if field == "label":
         text.truncate(LABEL_WIDTH, overflow="ellipsis")
     if field == "days_remaining" and isinstance(value, int) and value < 0:
