@@ -25,7 +25,7 @@ from pydantic import (
 from pydantic.dataclasses import dataclass as pydantic_dataclass
 from pydantic.fields import FieldInfo
 
-from planner.safetext import UNSHOWN
+from planner.safetext import first_unshown
 
 SCHEMA_VERSION = 1
 
@@ -110,7 +110,7 @@ def _printable(text: str) -> str:
 def _one_line(text: str) -> str:
     """An id or a name of a table: no control character, line end, tab or format character
     (it is shown in every message and list, and starts a row of them)."""
-    if not text.isprintable() and UNSHOWN.search(text):
+    if first_unshown(text) is not None:
         raise ValueError(ID_REFUSED)
     return text
 

@@ -23,8 +23,9 @@ import unicodedata
 # Zp line and paragraph separators, Cs lone surrogates.
 _HIDDEN = frozenset(("Cc", "Cf", "Zl", "Zp", "Cs"))
 _NAMED = {"\n": "\\n", "\r": "\\r", "\t": "\\t"}
-# What an id or a key may not hold: the same characters, as a pattern (C0, DEL, C1, and the
-# line separators and format characters of Unicode's General Punctuation block and the BOM).
+# The commonest of them as a pattern, for writers that escape in bulk (JSON, iCalendar, the
+# imported file): C0, DEL, C1, soft hyphen, and the line separators and format characters of
+# Unicode's General Punctuation block, the BOM and the interlinear annotation marks.
 _ABOVE_C0 = ("\x7f-\x9f\u00ad\u061c\u180e\u200b-\u200f\u2028-\u202e\u2060-\u206f\ufeff"
              "\ufff9-\ufffb")
 UNSHOWN = re.compile(f"[\x00-\x1f{_ABOVE_C0}]")
@@ -38,6 +39,13 @@ def _escape(c: str) -> str:
     code = ord(c)
     return f"\\x{code:02x}" if code < 0x100 else f"\\u{code:04x}" if code < 0x10000 \
         else f"\\U{code:08x}"
+
+
+def first_unshown(text: str) -> int | None:
+    """The position of the first character `shown` would escape, or None."""
+    if text.isprintable():
+        return None
+    return next((i for i, c in enumerate(text) if unicodedata.category(c) in _HIDDEN), None)
 
 
 def shown(text: str) -> str:

@@ -34,7 +34,7 @@ from planner.fleet import (
     is_table_class,
 )
 from planner.plan import FACT_WORDS, IntervalBasis, resolve_spec
-from planner.safetext import UNSHOWN
+from planner.safetext import first_unshown
 
 EARLIEST_DATE = dt.date(1950, 1, 1)
 LATEST_DATE = dt.date(2100, 12, 31)
@@ -728,10 +728,9 @@ def _explain(err: Any, path: Path, is_key: bool = False) -> tuple[str, str]:
 
 
 def _not_one_line(value: str, name: str) -> tuple[str, str]:
-    """(message, fix) for an id or a table's name holding a character it may not (see
-    `planner.safetext.UNSHOWN`): which one, where, and why."""
-    hit = UNSHOWN.search(value)
-    at = hit.start() if hit else 0
+    """(message, fix) for an id or a table's name holding a character it may not (one that
+    `planner.safetext.shown` would escape): which one, where, and why."""
+    at = first_unshown(value) or 0
     code = ord(value[at])
     what = _CONTROL_NAMES.get(code, {0x09: "tab", 0x0A: "line feed", 0x0D: "carriage return",
                                      0x2028: "line separator"}.get(code, ""))

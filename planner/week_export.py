@@ -22,7 +22,7 @@ from planner import __version__
 from planner.export import CAUTION, json_text, to_csv
 from planner.formats import money as _money
 from planner.plan import Status
-from planner.safetext import markdown_text, shown
+from planner.safetext import UNSHOWN_ABOVE_C0, markdown_text, shown
 from planner.week import (
     INCLUDE,
     Booking,
@@ -511,9 +511,10 @@ def to_markdown_text(week: WeekPlan, opens: dt.time = OPENS) -> str:
 
 def ics_text(text: str) -> str:
     """A TEXT value (RFC 5545 §3.3.11): backslash, semicolon, comma and newline escaped; other
-    control characters, which TEXT does not allow, removed."""
+    control characters, which TEXT does not allow, removed, and so are format characters such
+    as a bidi override (U+202E), which TEXT has no escape for."""
     text = text.replace("\r\n", "\n").replace("\r", "\n")
-    text = re.sub(r"[\x00-\x08\x0b-\x1f\x7f]", "", text)
+    text = UNSHOWN_ABOVE_C0.sub("", re.sub(r"[\x00-\x08\x0b-\x1f\x7f]", "", text))
     text = text.replace("\\", "\\\\").replace(";", "\\;").replace(",", "\\,")
     return text.replace("\n", "\\n")
 

@@ -55,6 +55,9 @@ def assert_inert(code: int, out: str, err: str, rows_are_csv: bool = False) -> N
     assert "Traceback" not in both
     for byte in COMMANDS_BYTES:
         assert byte not in both, f"{byte!r} reached the terminal"
+    if not rows_are_csv:  # a bidi override or a line separator would reorder or break lines
+        for char in ("\u202e", "\u2028"):
+            assert char not in both, f"{char!r} reached the terminal"
     if rows_are_csv:  # a line end inside a quoted cell is data (RFC 4180 §2.6): count rows
         rows = list(csv.reader(io.StringIO(out)))
         texts = [r[0] for r in rows if r] + err.splitlines()
