@@ -337,3 +337,24 @@ async def test_the_ui_asks_about_a_planted_marker_with_its_text_escaped(tmp_path
         assert "mallory\\x1b]0;owned\\x07\\nHX-99" in " ".join(words.split())
         assert "far\\x9b2J\\u202ehost" in words
         screen_text_is_inert(app)
+
+
+def test_the_ui_markdown_export_of_the_corpus_has_no_html_image_or_forged_heading():
+    from planner.tui.session import Session
+
+    session = Session(ACCEPTED, dt.date(2026, 12, 1))
+    assert session.load()
+    records = export.assessment_records(session.assessment())
+    doc = session.export_text(records, "markdown")
+    assert not unescaped("<", doc) and not unescaped("](", doc)
+    lines = doc.splitlines()
+    assert [line for line in lines if line.startswith("#")] == [lines[0]]
+    assert "\u202e" not in doc
+
+
+def test_json_keeps_the_text_and_escapes_format_and_separator_characters():
+    doc = {"label": "Van\u202ekcab\u2028x\x85y\n", "plain": "Zürich – 3 %"}
+    text = export.json_text(doc)
+    assert "\u202e" not in text and "\u2028" not in text and "\x85" not in text
+    assert json.loads(text) == doc  # the standard library reads back the same strings
+    assert "Zürich – 3 %" in text  # non-ASCII that is shown as it is stays readable
