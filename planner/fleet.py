@@ -296,7 +296,7 @@ class FleetSettings(_Model):
         description="Cost of a drive failure on a non-interference engine: tow, belt job and a "
         "lost day (default 400, from memory: set your own).",
     )
-    currency: Annotated[str, Strict(), Field(max_length=8), AfterValidator(_printable)] = Field(
+    currency: Annotated[str, Strict(), Field(max_length=8), AfterValidator(_one_line)] = Field(
         default="", description="Currency shown beside costs, e.g. 'EUR' (display only)."
     )
 

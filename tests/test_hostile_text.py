@@ -39,7 +39,7 @@ AS_OF = "2026-12-01"
 COMMANDS_BYTES = ("\x1b", "\x9b", "\x9d", "\x07")
 # Ids and words the corpus plants after a line end: a line of output starting with one of them
 # was forged by the file.
-FORGED = ("HX-99", "HX-98", "HX-77", "HX-33", "HX-66", "HX-55", "HX-44", "NOT-A-VEHICLE",
+FORGED = ("HX-99", "HX-98", "HX-77", "HX-33", "HX-22", "HX-66", "HX-55", "HX-44", "NOT-A-VEHICLE",
           "# Forged", "# Heading", "# heading", "kcab")
 
 
@@ -123,6 +123,17 @@ def test_a_vehicle_id_with_a_control_character_or_line_end_is_refused(tmp_path, 
     code, out, err = run(capsys, "check", str(path))
     assert code == 2
     assert "field id" in err and "fleet.toml:10" in err
+    assert_inert(code, out, err)
+
+
+@pytest.mark.parametrize("currency", ["G\nBP", "GB\tP", "\x1b[2J"])
+def test_a_currency_with_a_line_end_or_control_character_is_refused(tmp_path, capsys, currency):
+    path = tmp_path / "fleet.toml"
+    text = _fleet().replace("schema = 1\n", "", 1)
+    path.write_text(f"schema = 1\n[fleet]\ncurrency = {json.dumps(currency)}\n" + text,
+                    encoding="utf-8")
+    code, out, err = run(capsys, "check", str(path))
+    assert code == 2 and "field fleet.currency" in err
     assert_inert(code, out, err)
 
 

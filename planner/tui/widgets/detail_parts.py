@@ -28,6 +28,7 @@ from planner.plan import (
     odometer_points,
 )
 from planner.risk import REQUIRED_STATUSES
+from planner.safetext import shown
 from planner.tui.look import (
     BOLD,
     DIM,
@@ -128,7 +129,7 @@ def engine(plan: VehiclePlan, fleet: Fleet) -> Table:
         pairs.append(("interval", "none: replaced on condition"))
     job = []
     if spec.parts:
-        job.append(", ".join(spec.parts))
+        job.append(", ".join(shown(p) for p in spec.parts))  # line ends escaped
     if spec.labour_hours:
         job.append(f"{spec.labour_hours:g} h labour")
     if spec.parts_cost is not None:
