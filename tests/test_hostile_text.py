@@ -311,6 +311,12 @@ async def test_the_ui_shows_the_accepted_corpus_inert_in_every_view(tmp_path):
             screen_text_is_inert(app)
         await pilot.press("escape")
         await until(pilot, lambda: screen_name(app) == "MainScreen", what="back")
+        await pilot.press("e")  # the edit form: the engine choice shows the profile's words
+        await until(pilot, lambda: screen_name(app) == "FormScreen", what="form")
+        await pilot.pause()
+        screen_text_is_inert(app)
+        await pilot.press("escape")
+        await until(pilot, lambda: screen_name(app) == "MainScreen", what="back")
         await pilot.press("w")  # the week
         await until(pilot, lambda: screen_name(app) == "WeekScreen", what="week")
         await pilot.pause()
@@ -369,3 +375,12 @@ def test_json_keeps_the_text_and_escapes_format_and_separator_characters():
     assert "\u202e" not in text and "\u2028" not in text and "\x85" not in text
     assert json.loads(text) == doc  # the standard library reads back the same strings
     assert "Zürich – 3 %" in text  # non-ASCII that is shown as it is stays readable
+
+
+def test_a_form_shows_a_line_end_escaped_and_keeps_the_text_when_left_untouched():
+    from planner.tui.forms import FormField, convert, shown_value
+
+    f = FormField("label", "Label", value="Van\r\nHX-99 overdue\u202e")
+    assert shown_value(f) == "Van\\r\\nHX-99 overdue\\u202e"  # one line, escapes visible
+    assert convert(f, shown_value(f)) == "Van\r\nHX-99 overdue\u202e"  # the file's own text
+    assert convert(f, "Van HX-99") == "Van HX-99"  # what the user typed instead
