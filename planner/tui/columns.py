@@ -17,6 +17,7 @@ from rich.cells import cell_len
 from rich.text import Text
 
 from planner import export
+from planner.safetext import shown
 from planner.tui.look import DIM, consequence_text, field_text, status_text
 
 LABEL_WIDTH = 24
@@ -153,7 +154,7 @@ def cell_width(value: Any, field: str) -> int:
         return consequence_text(value).cell_len
     if value is None:
         return 1  # "–"
-    width = cell_len(export.display(value, field))
+    width = cell_len(shown(export.display(value, field)))  # as `field_text` shows it
     if field == "label" and width > LABEL_WIDTH:  # cut with an ellipsis; a wide character
         return cell({field: value}, field).cell_len  # may leave one cell short
     return width
