@@ -9,6 +9,8 @@ from __future__ import annotations
 
 from dataclasses import dataclass, field, replace
 
+from planner.safetext import shown
+
 Path = tuple[str | int, ...]
 
 
@@ -70,10 +72,14 @@ class Problem:
         return replace(self, file=file, line=line, column=column)
 
     def render(self) -> str:
-        """`fleet.toml:42: vehicle VAN-07, field readings[2].odometer: message. Fix: hint`."""
+        """`fleet.toml:42: vehicle VAN-07, field readings[2].odometer: message. Fix: hint`.
+
+        Every piece is file text or holds some (an id, a key, a value), so each is `shown`:
+        a control character or a line end reads as an escape, never reaches the terminal.
+        """
         where = ""
         if self.file:
-            where = self.file
+            where = shown(self.file)
             if self.line:
                 where += f":{self.line}"
                 if self.column:
@@ -81,13 +87,13 @@ class Problem:
             where += ": "
         subject = []
         if self.vehicle is not None:
-            subject.append(f"vehicle {self.vehicle}")
+            subject.append(f"vehicle {shown(self.vehicle)}")
         if self.field:
-            subject.append(f"field {self.field}")
+            subject.append(f"field {shown(self.field)}")
         head = "warning: " if self.is_warning else ""
-        text = where + head + (", ".join(subject) + ": " if subject else "") + self.message
+        text = where + head + (", ".join(subject) + ": " if subject else "") + shown(self.message)
         if self.hint:
-            text += f"\n    fix: {self.hint}"
+            text += f"\n    fix: {shown(self.hint)}"
         return text
 
 
@@ -106,8 +112,15 @@ class PlannerError(Exception):
         return self.render()
 
     def render(self) -> str:
-        lines = [self.title]
+        """Title, message and problems, one per line; file text in them `shown` (a message
+        may hold several lines of its own, each shown on its own)."""
+        lines = [_lines_shown(self.title)]
         if self.message:
-            lines.append(self.message)
+            lines.append(_lines_shown(self.message))
         lines.extend(p.render() for p in self.problems)
         return "\n".join(lines)
+
+
+def _lines_shown(text: str) -> str:
+    """`shown` line by line: the line ends of a message written by the planner are kept."""
+    return "\n".join(shown(line) for line in text.split("\n"))

@@ -18,6 +18,7 @@ from planner.caution import caution_block as caution_block
 from planner.formats import money, percent
 from planner.plan import VehiclePlan
 from planner.risk import REQUIRED_STATUSES, FleetAssessment, Risk, action_words
+from planner.safetext import UNSHOWN_ABOVE_C0, markdown_text
 
 # The JSON field names, in order. Scripts rely on them: add, never rename.
 FIELDS: tuple[str, ...] = (
@@ -166,17 +167,30 @@ def to_json(records: Sequence[dict[str, Any]], as_of: dt.date, unit: str,
     doc.update(extra or {})
     doc["vehicles"] = list(records)
     doc["caution"] = CAUTION
-    return json.dumps(doc, indent=2, ensure_ascii=False) + "\n"
+    return json_text(doc)
 
 
-_RISKY_START = ("=", "+", "-", "@", "\t", "\r")
+def json_text(doc: Any) -> str:
+    """`doc` as indented JSON, non-ASCII kept readable, but every control, format and line
+    separator character written as a \\u escape (RFC 8259 §7 allows any character so), so
+    printed JSON neither commands a terminal nor breaks a line."""
+    text = UNSHOWN_ABOVE_C0.sub(lambda m: f"\\u{ord(m.group()):04x}",
+                                json.dumps(doc, indent=2, ensure_ascii=False))
+    return text + "\n"
+
+
+# What a spreadsheet may take for the start of a formula (OWASP "CSV Injection"): = + - @,
+# tab and carriage return, and the fullwidth = + - @ (U+FF1D, U+FF0B, U+FF0D, U+FF20) that some
+# spreadsheets read as the plain ones.
+_RISKY_START = ("=", "+", "-", "@", "\t", "\r", "\uff1d", "\uff0b", "\uff0d", "\uff20")
 
 
 def safe_cell(value: Any) -> Any:
     """Neutralise a text cell a spreadsheet would run as a formula (OWASP: CSV injection).
 
     Numbers stay numbers (a negative distance is data, not a formula); text that starts with
-    = + - @ tab or carriage return gets a leading apostrophe.
+    = + - @ tab or carriage return, or their fullwidth forms, also after leading white space or
+    line ends (a spreadsheet may trim them), gets a leading apostrophe.
     """
     if value is None:
         return ""
@@ -187,7 +201,7 @@ def safe_cell(value: Any) -> Any:
     if isinstance(value, (list, tuple)):
         value = "; ".join(str(v) for v in value)
     text = str(value)
-    if text.startswith(_RISKY_START):
+    if text.startswith(_RISKY_START) or text.lstrip().startswith(_RISKY_START):
         return "'" + text
     return text
 
@@ -203,14 +217,13 @@ def to_csv(records: Iterable[dict[str, Any]], fields: Sequence[str]) -> str:
 
 
 def _md_cell(record: dict[str, Any], field: str) -> str:
-    text = cell(record, field).replace("\\", "\\\\").replace("|", "\\|")
-    return " ".join(text.split())
+    return markdown_text(cell(record, field))
 
 
 def to_markdown(records: Sequence[dict[str, Any]], columns: Sequence[tuple[str, str]],
                 title: str, preface: Sequence[str] = (), footer: Sequence[str] = ()) -> str:
     """A titled Markdown table of `columns` ((field, heading) pairs) with the caution below."""
-    lines = [f"# {title}", ""]
+    lines = [f"# {markdown_text(title)}", ""]
     for line in preface:
         lines.append(line)
     if preface:

@@ -25,6 +25,8 @@ from pydantic import (
 from pydantic.dataclasses import dataclass as pydantic_dataclass
 from pydantic.fields import FieldInfo
 
+from planner.safetext import first_unshown
+
 SCHEMA_VERSION = 1
 
 # Sanity ceilings: a value above these is a typing slip, never a real vehicle.
@@ -103,6 +105,17 @@ def _printable(text: str) -> str:
     if not text.isprintable() and CONTROL_CHARACTER.search(text):
         raise ValueError("contains a control character")
     return text
+
+
+def _one_line(text: str) -> str:
+    """An id or a name of a table: no control character, line end, tab or format character
+    (it is shown in every message and list, and starts a row of them)."""
+    if first_unshown(text) is not None:
+        raise ValueError(ID_REFUSED)
+    return text
+
+
+ID_REFUSED = "holds a control character, line end, tab or format character"
 
 
 def _whole_number(value: object) -> object:
@@ -213,10 +226,10 @@ class Vehicle(DriveSpec):
     """One vehicle. Drive fields given here override those of its engine profile."""
 
     id: Annotated[str, Strict(), Field(min_length=1, max_length=64),
-                  AfterValidator(_printable)] = Field(
+                  AfterValidator(_one_line)] = Field(
         description="Unique id (fleet number or plate).")
     label: ShortText = Field(default="", description="Name shown beside the id.")
-    engine: Annotated[str, Strict(), AfterValidator(_printable)] | None = Field(
+    engine: Annotated[str, Strict(), AfterValidator(_one_line)] | None = Field(
         default=None, description="Id of an [engines.<id>] profile.")
     duty: Duty = Field(default=Duty.NORMAL,
                        description="normal or severe (towing, short trips, stop-start delivery, "
@@ -283,7 +296,7 @@ class FleetSettings(_Model):
         description="Cost of a drive failure on a non-interference engine: tow, belt job and a "
         "lost day (default 400, from memory: set your own).",
     )
-    currency: Annotated[str, Strict(), Field(max_length=8), AfterValidator(_printable)] = Field(
+    currency: Annotated[str, Strict(), Field(max_length=8), AfterValidator(_one_line)] = Field(
         default="", description="Currency shown beside costs, e.g. 'EUR' (display only)."
     )
 
@@ -341,7 +354,8 @@ class Fleet(_Model):
         default=SCHEMA_VERSION, alias="schema", description="Format version of the file: 1."
     )
     fleet: FleetSettings = Field(default_factory=FleetSettings)
-    engines: dict[Annotated[str, Strict(), Field(min_length=1, max_length=64)],
+    engines: dict[Annotated[str, Strict(), Field(min_length=1, max_length=64),
+                            AfterValidator(_one_line)],
                   EngineProfile] = Field(default_factory=dict, description="Engine profiles by id.")
     vehicles: list[Vehicle] = Field(default_factory=list, description="The vehicles.")
     risk: RiskSettings = Field(default_factory=RiskSettings)

@@ -31,6 +31,7 @@ from dataclasses import dataclass
 from pathlib import Path
 
 from planner import __version__
+from planner.safetext import shown
 
 SUFFIX = ".in-use"
 MAX_MARKER_BYTES = 4096  # a record is ~200 bytes; anything much longer is not one
@@ -76,8 +77,19 @@ class Holder:
     same_host: bool  # False: its process could not be checked
 
     def who(self) -> str:
-        """`ana@workshop-2 (process 4242)`."""
-        return f"{self.record.user}@{self.record.host} (process {self.record.pid})"
+        """`ana@workshop-2 (process 4242)`: user and host as `safetext.shown` (a marker is a
+        file anyone with write access to the folder can plant)."""
+        return f"{self.user}@{self.host} (process {self.record.pid})"
+
+    @property
+    def user(self) -> str:
+        """The marker's user, made inert for display."""
+        return shown(self.record.user)
+
+    @property
+    def host(self) -> str:
+        """The marker's host, made inert for display."""
+        return shown(self.record.host)
 
     def since(self, now: dt.datetime, tz: dt.tzinfo | None = None) -> str:
         """`09:15, 12 minutes ago` in local time (`tz`: for tests), the date when not today."""

@@ -23,6 +23,7 @@ from pydantic import BaseModel, ValidationError
 from planner.errors import WARNING, Path, PlannerError, Problem
 from planner.fleet import (
     CONTROL_CHARACTER,
+    ID_REFUSED,
     OLD_SETTING_NAMES,
     SPEC_FIELDS,
     BeltHistory,
@@ -33,6 +34,7 @@ from planner.fleet import (
     is_table_class,
 )
 from planner.plan import FACT_WORDS, IntervalBasis, resolve_spec
+from planner.safetext import first_unshown
 
 EARLIEST_DATE = dt.date(1950, 1, 1)
 LATEST_DATE = dt.date(2100, 12, 31)
@@ -662,6 +664,8 @@ def _explain(err: Any, path: Path, is_key: bool = False) -> tuple[str, str]:
     ctx = err.get("ctx") or {}
     value = err.get("input")
     name = next((str(p) for p in reversed(path) if isinstance(p, str)), "")
+    if kind == "value_error" and ID_REFUSED in str(err.get("msg")) and isinstance(value, str):
+        return _not_one_line(value, "the name of this table" if is_key else name)
     if is_key:  # the name of a table in a table of tables, e.g. an engine profile's id
         table = ".".join(str(p) for p in path[:-1])
         return (f"the name {_show(value)} in [{table}] is not usable: {err['msg'].lower()}",
@@ -721,6 +725,20 @@ def _explain(err: Any, path: Path, is_key: bool = False) -> tuple[str, str]:
                 f"write it in square brackets: {name} = [{example}]")
     return (f"{err['msg']} {found}",
             "see the fleet-file reference in the README (`beltplan schema` lists every key)")
+
+
+def _not_one_line(value: str, name: str) -> tuple[str, str]:
+    """(message, fix) for an id or a table's name holding a character it may not (one that
+    `planner.safetext.shown` would escape): which one, where, and why."""
+    at = first_unshown(value) or 0
+    code = ord(value[at])
+    what = _CONTROL_NAMES.get(code, {0x09: "tab", 0x0A: "line feed", 0x0D: "carriage return",
+                                     0x2028: "line separator"}.get(code, ""))
+    label = f"U+{code:04X}" + (f" ({what})" if what else "")
+    return (f"{name} holds {label} at position {at + 1}: an id or a name is one line of "
+            "visible text",
+            f"remove it (in the file it is written as an escape such as \\u{code:04x}): it "
+            "would start a new line or send a command in every message and list that shows it")
 
 
 def _number_text(value: Any) -> str:

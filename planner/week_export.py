@@ -14,15 +14,15 @@ segment a day, so they are unique in a plan and the same for the same booking on
 from __future__ import annotations
 
 import datetime as dt
-import json
 import re
 from collections.abc import Iterable, Sequence
 from typing import Any
 
 from planner import __version__
-from planner.export import CAUTION, to_csv
+from planner.export import CAUTION, json_text, to_csv
 from planner.formats import money as _money
 from planner.plan import Status
+from planner.safetext import UNSHOWN_ABOVE_C0, markdown_text, shown
 from planner.week import (
     INCLUDE,
     Booking,
@@ -40,15 +40,13 @@ UID_DOMAIN = "beltplan.invalid"  # RFC 2606: a domain that can never be someone 
 LIST_KINDS = ("jobs", "parts", "calls")
 WEEKDAY_NAMES = ("Mon", "Tue", "Wed", "Thu", "Fri", "Sat", "Sun")
 
-_CONTROL = re.compile(r"[\x00-\x08\x0b-\x1f\x7f-\x9f]")
-
-
 # -- small formatting helpers --------------------------------------------------------------------
 
 
 def clean(text: str) -> str:
-    """Text from the fleet file made safe to print: control characters (escape codes) removed."""
-    return _CONTROL.sub("", text.replace("\t", " ").replace("\n", " "))
+    """Text from the fleet file made safe to print (`safetext.shown`): line ends, tabs,
+    control and format characters written as visible escapes."""
+    return shown(text)
 
 
 def hours_text(h: float) -> str:
@@ -409,17 +407,12 @@ def to_json_text(week: WeekPlan, opens: dt.time = OPENS) -> str:
         "notes": list(week.notes),
         "caution": CAUTION,
     }
-    return json.dumps(doc, indent=2, ensure_ascii=False) + "\n"
+    return json_text(doc)
 
 
 # -- Markdown ------------------------------------------------------------------------------------
 
-_MD_SPECIAL = re.compile(r"([\\`*_\[\]<>|#~])")
-
-
-def md(text: str) -> str:
-    """Free text for Markdown: one line, the characters Markdown acts on escaped."""
-    return _MD_SPECIAL.sub(r"\\\1", " ".join(clean(text).split()))
+md = markdown_text  # the one Markdown escaping (planner/safetext.py), shared with the list
 
 
 def _md_table(headers: Sequence[str], rows: Iterable[Sequence[str]]) -> list[str]:
@@ -518,9 +511,10 @@ def to_markdown_text(week: WeekPlan, opens: dt.time = OPENS) -> str:
 
 def ics_text(text: str) -> str:
     """A TEXT value (RFC 5545 §3.3.11): backslash, semicolon, comma and newline escaped; other
-    control characters, which TEXT does not allow, removed."""
+    control characters, which TEXT does not allow, removed, and so are format characters such
+    as a bidi override (U+202E), which TEXT has no escape for."""
     text = text.replace("\r\n", "\n").replace("\r", "\n")
-    text = re.sub(r"[\x00-\x08\x0b-\x1f\x7f]", "", text)
+    text = UNSHOWN_ABOVE_C0.sub("", re.sub(r"[\x00-\x08\x0b-\x1f\x7f]", "", text))
     text = text.replace("\\", "\\\\").replace(";", "\\;").replace(",", "\\,")
     return text.replace("\n", "\\n")
 

@@ -150,7 +150,10 @@ def test_the_courier_example_with_random_edits(edits):
 # tab and line feed, which are allowed.
 CHARS = st.characters(blacklist_categories=("Cs", "Cc")) | st.sampled_from("\t\n")
 TEXT = st.text(CHARS, max_size=30)
-IDS = st.text(CHARS, min_size=1, max_size=12)
+# An id or a profile's name is one line of visible text: no control or format character, no
+# line or paragraph separator, no tab or line end (planner.fleet._one_line).
+IDS = st.text(st.characters(blacklist_categories=("Cs", "Cc", "Cf", "Zl", "Zp")), min_size=1,
+              max_size=12)
 DAYS = st.dates(dt.date(1990, 1, 1), dt.date(2026, 12, 31))
 DISTANCE = st.integers(0, 30_000) | st.floats(0, 30_000, allow_nan=False)
 

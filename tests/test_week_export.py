@@ -278,8 +278,9 @@ def test_table_shows_the_week(week):
     assert text.rstrip().endswith(CAUTION)
 
 
-def test_terminal_text_drops_control_characters():
-    assert clean("van\x1b[31m red\x07\tx") == "van[31m red x"
+def test_terminal_text_shows_control_characters_as_escapes():
+    # ESC, BEL and the tab written out by hand as \x1b, \x07, \t: visible, never obeyed.
+    assert clean("van\x1b[31m red\x07\tx") == "van\\x1b[31m red\\x07\\tx"
 
 
 def test_markdown_and_table_golden(week):

@@ -9,6 +9,7 @@ from pathlib import Path
 
 from planner import importer
 from planner.caution import caution_block
+from planner.cli.common import say
 from planner.errors import PlannerError
 from planner.fileio import backup_path, load_fleet, read_csv, write_atomic
 
@@ -92,9 +93,9 @@ def run(args: argparse.Namespace) -> int:
         decoded.text, source=args.csv, when=dt.datetime.now().replace(second=0, microsecond=0),
         unit=args.unit, column_map=importer.parse_map(args.map), date_order=args.date_order,
         name=args.name, group_profiles=not args.no_profiles, decoded=decoded)
-    print("\n".join(result.report))
+    say("\n".join(result.report))
     if args.dry_run:
-        print(f"\nDry run: nothing written. The fleet file would be"
+        say(f"\nDry run: nothing written. The fleet file would be"
               f"{' ' + str(out) if out else ''}:\n")
         sys.stdout.write(result.text)
         return 0
@@ -106,10 +107,10 @@ def run(args: argparse.Namespace) -> int:
     write_atomic(out, result.text.encode("utf-8"))
     loaded = load_fleet(out)  # the normal loader: what was written must be a valid fleet file
     fleet = loaded.fleet
-    print(f"\nWrote {out}{kept}: {len(fleet.vehicles)} vehicles, {len(fleet.engines)} engine "
+    say(f"\nWrote {out}{kept}: {len(fleet.vehicles)} vehicles, {len(fleet.engines)} engine "
           f"profiles, distances in {fleet.unit}; loaded back and valid.")
     if result.problems:
-        print(f"{len({p.row for p in result.problems})} rows were left out: fix them in the "
+        say(f"{len({p.row for p in result.problems})} rows were left out: fix them in the "
               "sheet and import again with --force, or add them to the file by hand.")
-    print(f"Next: beltplan list {out}")
+    say(f"Next: beltplan list {out}")
     return 0

@@ -17,6 +17,7 @@ from planner import export
 from planner.cli.common import add_as_of, as_of_or_today, emit, load, pick_words
 from planner.plan import Status, VehiclePlan
 from planner.risk import ORDERS, assess_fleet_plan
+from planner.safetext import shown
 from planner.units import distance_factor
 
 FORMATS = ("table", "csv", "json", "markdown")
@@ -109,7 +110,7 @@ def fit_columns(columns: Sequence[tuple[str, str]], records: Sequence[dict],
                 width: int) -> list[tuple[str, str]]:
     """Leave out the least needed columns until the rest fit `width` without folding."""
     def need(field: str, heading: str) -> int:
-        cells = [len(export.cell(r, field)) for r in records]
+        cells = [len(shown(export.cell(r, field))) for r in records]
         return max([len(heading), *cells]) + 3
 
     kept = list(columns)
@@ -136,7 +137,7 @@ def render_table(plans: Sequence[VehiclePlan], records: Sequence[dict],
     buf = io.StringIO()
     console = _console(buf, plain)
     columns = fit_columns(columns, records, console.width)
-    table = Table(title=title, title_justify="left", title_style="bold", header_style="bold",
+    table = Table(title=shown(title), title_justify="left", title_style="bold", header_style="bold",
                   box=box.SIMPLE_HEAD, pad_edge=False, expand=False)
     for field, heading in columns:
         right = field in ("distance_remaining", "days_remaining", "life_used", "p_fail_horizon",
@@ -151,11 +152,12 @@ def render_table(plans: Sequence[VehiclePlan], records: Sequence[dict],
             value = export.cell(rec, field)
             style = STATUS_STYLE.get(value) if field == "status" else (
                 CONSEQUENCE_STYLE.get(value) if field == "consequence" else None)
-            cells.append(Text(value, style=style or ""))  # Text: file content is never markup
+            # Text: file content is never markup; shown: never a command or a line end
+            cells.append(Text(shown(value), style=style or ""))
         table.add_row(*cells)
     console.print(table)
     console.print(_summary(plans))
     for line in footer:
-        console.print(Text(line, style="italic"))
+        console.print(Text(shown(line), style="italic"))
     console.print(Text("Caution: " + export.CAUTION, style="bold"))
     return buf.getvalue()

@@ -9,7 +9,7 @@ import sys
 from planner import importer, inuse
 from planner.caution import caution_block
 from planner.cli.cmd_import import add_csv_options
-from planner.cli.common import load
+from planner.cli.common import load, say
 from planner.fileio import backup_path, read_csv, save_fleet_text
 
 EPILOG = """\
@@ -56,14 +56,14 @@ def run(args: argparse.Namespace) -> int:
         decoded.text, loaded.fleet, loaded.text, source=args.csv,
         column_map=importer.parse_map(args.map), date_order=args.date_order,
         today=dt.date.today(), decoded=decoded)
-    print("\n".join(result.report))
+    say("\n".join(result.report))
     if args.dry_run:
-        print(f"\nDry run: {args.file} was not changed.")
+        say(f"\nDry run: {args.file} was not changed.")
     elif not result.added:
-        print(f"\nNothing to add: {args.file} was not changed.")
+        say(f"\nNothing to add: {args.file} was not changed.")
     else:
         save_fleet_text(loaded, result.text)
-        print(f"\nSaved {args.file} with {len(result.added)} new reading"
+        say(f"\nSaved {args.file} with {len(result.added)} new reading"
               f"{'s' * (len(result.added) != 1)} (the previous version is "
               f"{backup_path(loaded.path)}).")
         note_open_window(args.file, inuse.holder(loaded.path))
@@ -75,6 +75,6 @@ def note_open_window(file: str, held: inuse.Holder | None) -> None:
     if held is None:
         return
     now = dt.datetime.now(dt.UTC)  # the clock at the edge, for "12 minutes ago"
-    print(f"beltplan: note: {file} is open in a beltplan window of {held.who()} since "
+    say(f"beltplan: note: {file} is open in a beltplan window of {held.who()} since "
           f"{held.since(now)}; that window will have to reload the file before it can save.",
           file=sys.stderr)

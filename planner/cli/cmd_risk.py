@@ -3,13 +3,13 @@
 from __future__ import annotations
 
 import argparse
-import json
 
 from planner import export
-from planner.cli.common import add_as_of, as_of_or_today, emit, load
+from planner.cli.common import add_as_of, as_of_or_today, emit, lines_shown, load
 from planner.formats import money, percent
 from planner.reliability import weibull_cdf
 from planner.risk import FLEET_FIT, fitted_model, replacement_points, risk_model
+from planner.safetext import shown
 
 
 def register(sub: argparse._SubParsersAction) -> None:
@@ -61,11 +61,12 @@ def run(args: argparse.Namespace) -> int:
                 for p in points],
             "caution": export.CAUTION,
         }
-        emit(json.dumps(doc, indent=2) + "\n", args.output, loaded.path, what="the risk report")
+        emit(export.json_text(doc), args.output, loaded.path, what="the risk report")
         return 0
 
     cur = f" {fleet.fleet.currency}" if fleet.fleet.currency else ""
-    lines = [f"Failure-risk model for {fleet.fleet.name or loaded.path.name} on {as_of}", ""]
+    name = shown(fleet.fleet.name or loaded.path.name)
+    lines = [f"Failure-risk model for {name} on {as_of}", ""]
     lines.append("In force")
     lines.append(f"  {model.describe()}")
     lines.append("  Life is the share of the maker's interval used: distance or age, whichever "
@@ -100,7 +101,8 @@ def run(args: argparse.Namespace) -> int:
         lines.append("  no belt-driven engines in the file")
     lines.append("")
     lines.append(f"Caution: {export.CAUTION}")
-    emit("\n".join(lines) + "\n", args.output, loaded.path, what="the risk report")
+    emit(lines_shown("\n".join(lines)) + "\n", args.output, loaded.path,
+         what="the risk report")
     return 0
 
 

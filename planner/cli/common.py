@@ -11,6 +11,7 @@ from pathlib import Path
 
 from planner.errors import PlannerError
 from planner.fileio import LoadedFleet, load_fleet, write_atomic
+from planner.safetext import shown
 
 EXIT_USER_ERROR = 2
 
@@ -18,6 +19,18 @@ EXIT_USER_ERROR = 2
 def fail(err: PlannerError) -> int:
     print(f"beltplan: {err.render()}", file=sys.stderr)
     return EXIT_USER_ERROR
+
+
+def lines_shown(text: str) -> str:
+    """A report built here, line by line, with the file text in it made inert: every
+    character `safetext.shown` escapes but the line ends the report's own lines are joined by.
+    (Ids are single-line by validation; other file text is shown where it is put in.)"""
+    return "\n".join(shown(line) for line in text.split("\n"))
+
+
+def say(text: str = "", file: object = None) -> None:
+    """`print` of a report line that holds file text (`lines_shown`)."""
+    print(lines_shown(text), file=file or sys.stdout)
 
 
 def iso_date(text: str) -> dt.date:

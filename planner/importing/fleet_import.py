@@ -17,6 +17,7 @@ from planner.importing.csvtable import Decoded, Row, RowProblem
 from planner.importing.fields import FLEET_FIELDS, VEHICLE_ORDER
 from planner.importing.profiles import make_profiles, profile_report
 from planner.importing.sheet import Sheet, column_report, open_sheet, read_row
+from planner.safetext import UNSHOWN_ABOVE_C0
 from planner.validate import build_fleet, fleet_warnings
 
 
@@ -84,7 +85,10 @@ def import_fleet(text: str, *, source: str, when: dt.datetime | dt.date,
               + (f"; {left_out} left out (see the import report)." if left_out else "."),
               "# Check every interval against the maker's schedule before relying on the plan.",
               ""]
-    out = "\n".join(header) + "\n" + tomli_w.dumps(document)
+    # Format and line-separator characters (U+202E …) as \u escapes: the same strings, and the
+    # file (or a dry run's print of it) shows them instead of obeying them.
+    body = UNSHOWN_ABOVE_C0.sub(lambda m: f"\\u{ord(m.group()):04x}", tomli_w.dumps(document))
+    out = "\n".join(header) + "\n" + body
     try:
         fleet = build_fleet(tomllib.loads(out))
     except PlannerError as err:  # a bug: every row was checked on its own above

@@ -25,7 +25,7 @@ from planner.tui.app_inuse import InUseActions, Marked
 from planner.tui.app_week import WeekActions
 from planner.tui.background import gc_paused, internal_error, off_thread
 from planner.tui.commands import ActionCommands
-from planner.tui.look import STYLES, THEME
+from planner.tui.look import STYLES, THEME, literal
 from planner.tui.screens.detail import DetailScreen
 from planner.tui.screens.dialogs import FilterDialog, PickDialog
 from planner.tui.screens.error import ErrorScreen
@@ -83,7 +83,9 @@ class BeltplanApp(EditActions, FileActions, ImportActions, InUseActions, WeekAct
         return scope_of(self.screen) in spec.scopes
 
     def say(self, message: str, severity: str = "information") -> None:
-        """Tell the user something (a notification; never read as markup)."""
+        """Tell the user something (a notification; never read as markup, and any control or
+        format character in file text it quotes shown as an escape: `look.literal`)."""
+        message = literal(message).plain
         self.last_message = message
         self.notify(message, severity=severity, markup=False)  # type: ignore[arg-type]
 

@@ -9,7 +9,7 @@ from rich.text import Text
 
 from planner.errors import PlannerError
 from planner.plan import VehiclePlan
-from planner.tui.look import literal
+from planner.tui.look import field_text, literal
 from planner.tui.screens.dialogs import AskDialog, PickDialog
 from planner.tui.screens.form import FormScreen
 
@@ -97,7 +97,7 @@ class EditActions:
         question.append(literal(plan.id, "bold"))
         if plan.vehicle.label:
             question.append(" ")
-            question.append(literal(plan.vehicle.label))
+            question.append(field_text(plan.vehicle.label))
         n_r, n_j = len(plan.vehicle.readings), len(plan.vehicle.belt_jobs)
         question.append(f" with its {n_r} readings and {n_j} belt jobs?\n"
                         "u undoes it until you quit; the file changes only when you save.")
@@ -131,7 +131,7 @@ class EditActions:
             words = literal(pid, "bold")
             if profile.description:
                 words.append("  ")
-                words.append(literal(profile.description))
+                words.append(field_text(profile.description))
             options.append((pid, words))
 
         def done(choice: str | None) -> None:

@@ -18,6 +18,7 @@ from textual.widgets import Button, Static
 
 from planner import inuse
 from planner.inuse import Claim, Holder, Unmarked
+from planner.safetext import shown
 from planner.tui import clock
 from planner.tui.background import off_thread
 from planner.tui.screens.dialogs import AskDialog
@@ -138,8 +139,9 @@ class InUseActions:
     def _ask_in_use(self: BeltplanApp, held: Holder) -> None:
         path = self.session.path
         rec = held.record
-        question = Text(f"{rec.user} has had {path} open in another beltplan window since "
-                        f"{held.since(clock.utc_now())} (on {rec.host}, process {rec.pid}).",
+        question = Text(f"{held.user} has had {shown(str(path))} open in another beltplan "
+                        f"window since {held.since(clock.utc_now())} (on {held.host}, process "
+                        f"{rec.pid}).",
                         style="")
         if not held.same_host:
             question.append(" That window is on another computer, so this one cannot check "

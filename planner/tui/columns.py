@@ -17,7 +17,8 @@ from rich.cells import cell_len
 from rich.text import Text
 
 from planner import export
-from planner.tui.look import DIM, consequence_text, literal, status_text
+from planner.safetext import shown
+from planner.tui.look import DIM, consequence_text, field_text, status_text
 
 LABEL_WIDTH = 24
 CELL_PADDING = 1
@@ -55,7 +56,7 @@ def cell(record: dict[str, Any], field: str) -> Text:
         return consequence_text(value)
     if value is None and (field not in MARKED or export.mark(record, field) is None):
         return Text("–", style=DIM)
-    text = literal(export.cell(record, field))
+    text = field_text(export.cell(record, field))
     if field == "label":
         text.truncate(LABEL_WIDTH, overflow="ellipsis")
     if field == "days_remaining" and isinstance(value, int) and value < 0:
@@ -153,7 +154,7 @@ def cell_width(value: Any, field: str) -> int:
         return consequence_text(value).cell_len
     if value is None:
         return 1  # "–"
-    width = cell_len(export.display(value, field))
+    width = cell_len(shown(export.display(value, field)))  # as `field_text` shows it
     if field == "label" and width > LABEL_WIDTH:  # cut with an ellipsis; a wide character
         return cell({field: value}, field).cell_len  # may leave one cell short
     return width

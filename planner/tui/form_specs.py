@@ -26,7 +26,7 @@ from planner.fleet import (
 )
 from planner.plan import VehiclePlan
 from planner.tui.forms import FormField, FormSpec, choices
-from planner.tui.look import DIM, literal
+from planner.tui.look import DIM, field_text, literal
 from planner.tui.session import EXPORT_FORMATS, Session
 
 F = FormField
@@ -40,7 +40,7 @@ def _subject(plan: VehiclePlan) -> Text:
     text = literal(plan.id, "bold")
     if plan.vehicle.label:
         text.append(" ")
-        text.append(literal(plan.vehicle.label))
+        text.append(field_text(plan.vehicle.label))
     return text
 
 

@@ -15,6 +15,7 @@ from typing import Any
 from rich.text import Text
 
 from planner.errors import Problem
+from planner.safetext import shown
 
 KINDS = ("text", "date", "distance", "number", "months", "choice", "list")
 
@@ -72,6 +73,9 @@ def convert(f: FormField, raw: Any) -> Any:
     if f.kind == "choice":
         value = raw if raw not in ("", None) else None
     else:
+        original = _typed_value(f)
+        if raw == shown(original) != original:  # shown escaped, left untouched
+            raw = original
         text = (raw or "").strip()
         value = None if text == "" else _convert_text(f, text)
     if value is None and f.required:
@@ -102,7 +106,13 @@ def _convert_text(f: FormField, text: str) -> Any:
 
 
 def shown_value(f: FormField) -> str:
-    """The initial value as the user would type it."""
+    """The initial value as the user would type it; a line end, tab, control or format
+    character from the file as a visible escape (`safetext.shown`): an input shows one line,
+    and `convert` gives the file's own text back while the escaped text is left as it is."""
+    return shown(_typed_value(f))
+
+
+def _typed_value(f: FormField) -> str:
     v = f.value
     if v is None:
         return ""

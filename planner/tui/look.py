@@ -12,6 +12,8 @@ from rich.style import Style
 from rich.text import Text
 from textual.theme import Theme
 
+from planner.safetext import shown
+
 # The .tcss files sit in planner/tui/ (packaged by pyproject's "tui/*.tcss").
 STYLES = Path(__file__).resolve().parent
 
@@ -87,10 +89,21 @@ def consequence_text(consequence: str) -> Text:
 
 
 def literal(value: object, style: Style | str = "") -> Text:
-    """File text shown as it is: `[red]van[/]` stays those characters, never markup.
+    """Text shown as it is: `[red]van[/]` stays those characters, never markup; a control or
+    format character (ESC, CR, a tab, U+202E …) as a visible escape (`safetext.shown`), so it
+    never reaches the terminal. Its line ends are kept (the planner's own messages have some):
+    a field of the file goes through `field_text`.
 
     The style covers these characters only, so text appended later does not inherit it.
     """
     text = Text()
-    text.append(str(value), style=style)
+    text.append("\n".join(shown(line) for line in str(value).split("\n")), style=style)
+    return text
+
+
+def field_text(value: object, style: Style | str = "") -> Text:
+    """A field of the file (a label, a note, a name): as `literal`, its line ends escaped
+    too, so it never makes a line of its own that could pass for another row."""
+    text = Text()
+    text.append(shown(str(value)), style=style)
     return text

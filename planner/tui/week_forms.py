@@ -14,7 +14,7 @@ from rich.text import Text
 from planner.errors import PlannerError, Problem
 from planner.tui import clock
 from planner.tui.forms import FormField, FormSpec
-from planner.tui.look import DIM, literal
+from planner.tui.look import DIM, field_text, literal
 from planner.tui.week_state import EXPORT_KINDS, WeekState
 from planner.week import INCLUDE, MAX_WEEKS, WeekPlan, default_start
 from planner.week_export import day_text, hours_text
@@ -41,7 +41,7 @@ def move_form(state: WeekState, vehicle_id: str) -> FormSpec:
     intro = literal(vehicle_id, "bold")
     if job.label:
         intro.append(" ")
-        intro.append(literal(job.label))
+        intro.append(field_text(job.label))
     hours = "no labour hours set" if job.hours is None else hours_text(job.hours)
     if booking is not None:
         intro.append(f"\n{hours}, now in bay {booking.bay} from {day_text(booking.first_day)}",

@@ -13,7 +13,7 @@ from textual.widgets import Static
 
 from planner.errors import PlannerError, Problem
 from planner.tui.actions import BY_ID, ERROR, key_label
-from planner.tui.look import ACCENT, DIM, STYLES, literal
+from planner.tui.look import ACCENT, DIM, STYLES, field_text, literal
 from planner.tui.widgets.bars import KeyStrip, TitleBar
 
 if TYPE_CHECKING:
@@ -41,10 +41,10 @@ def error_table(error: PlannerError) -> Table:
     for k, problem in enumerate(error.problems, 1):
         if k > 1:
             table.add_row("", "")
-        table.add_row(f"{k}.", literal(_where(problem), "bold"))
-        table.add_row("", literal(problem.message))
+        table.add_row(f"{k}.", field_text(_where(problem), "bold"))
+        table.add_row("", field_text(problem.message))
         if problem.hint:
-            table.add_row("fix", literal(problem.hint))
+            table.add_row("fix", field_text(problem.hint))
     return table
 
 

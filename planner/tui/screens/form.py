@@ -17,7 +17,7 @@ from textual.widgets import Button, Input, Label, Select, Static
 
 from planner.errors import PlannerError
 from planner.tui.forms import FormField, FormProblem, FormSpec, convert, shown_value
-from planner.tui.look import ACCENT, literal
+from planner.tui.look import ACCENT, field_text, literal
 from planner.tui.screens.modal import Popup
 
 
@@ -54,7 +54,7 @@ class FormScreen(Popup[Any]):
     def _widget(self, f: FormField) -> Input | Select:
         if f.kind == "choice":
             initial = shown_value(f)
-            return Select([(literal(words), value) for value, words in f.choices],
+            return Select([(field_text(words), value) for value, words in f.choices],
                           value=initial if initial else Select.NULL,
                           prompt=f.placeholder or "(not set)", allow_blank=not f.required,
                           id=f"f-{f.name}", compact=True, disabled=f.disabled)

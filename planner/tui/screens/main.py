@@ -15,7 +15,7 @@ from textual.screen import Screen
 from textual.widgets import Input, Label, Static
 
 from planner.tui.actions import ERROR, MAIN
-from planner.tui.look import DIM, STYLES, literal
+from planner.tui.look import DIM, STYLES, field_text, literal
 from planner.tui.view import View, describe
 from planner.tui.widgets.bars import KeyStrip, SummaryLine, TitleBar
 from planner.tui.widgets.fleet_table import FleetTable, next_sort
@@ -95,11 +95,11 @@ class MainScreen(Screen):
         text = literal(rec["id"], "bold")
         if rec.get("label"):
             text.append(" ")
-            text.append(literal(rec["label"]))
+            text.append(field_text(rec["label"]))
         notes = rec.get("notes") or []
         if notes:
             text.append(" │ ", style=DIM)
-            text.append(literal(notes[0]))
+            text.append(field_text(notes[0]))
         box.update(text)
 
     # -- events ---------------------------------------------------------------------------

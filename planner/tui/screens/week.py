@@ -19,7 +19,7 @@ from textual.widgets import ContentSwitcher, OptionList, Static
 
 from planner.errors import PlannerError
 from planner.tui.actions import BY_ID, WEEK, bindings, first_key
-from planner.tui.look import ACCENT, DIM, STYLES, literal
+from planner.tui.look import ACCENT, DIM, STYLES, field_text, literal
 from planner.tui.screens.week_actions import WeekViewActions
 from planner.tui.widgets import week_sections
 from planner.tui.widgets.bars import KeyStrip, TitleBar
@@ -222,7 +222,7 @@ def job_info(week: WeekPlan, vehicle_id: str) -> Text:
     text = literal(job.vehicle_id, "bold")
     if job.label:
         text.append(" ")
-        text.append(literal(job.label))
+        text.append(field_text(job.label))
     booking = week.booking(vehicle_id)
     if booking is not None:
         first = booking.segments()[0]
@@ -231,12 +231,12 @@ def job_info(week: WeekPlan, vehicle_id: str) -> Text:
         text.append(f"bay {booking.bay}, {day_text(booking.first_day)} {span_text(first)}"
                     + (f" (+{days - 1} day{'s' if days > 2 else ''})" if days > 1 else ""))
     text.append(" · ", style=DIM)
-    text.append(literal(job.engine))
+    text.append(field_text(job.engine))
     if booking is not None:
         text.append("\n")
-        text.append(literal(job.reason))
+        text.append(field_text(job.reason))
         text.append(" · parts: ", style=DIM)
-        text.append(literal(", ".join(job.parts) or "not listed"))
+        text.append(field_text(", ".join(job.parts) or "not listed"))
         if booking.parts_ready is not None:
             text.append(f", in on {booking.parts_ready}", style=DIM)
         return text
@@ -244,5 +244,5 @@ def job_info(week: WeekPlan, vehicle_id: str) -> Text:
     text.append("\n")
     if unplaced is not None:
         text.append("not placed: ", style="bold")
-        text.append(literal(f"{unplaced.reason}: {unplaced.detail}"))
+        text.append(field_text(f"{unplaced.reason}: {unplaced.detail}"))
     return text

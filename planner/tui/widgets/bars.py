@@ -12,7 +12,15 @@ from textual.containers import Horizontal
 from textual.widgets import Static
 
 from planner.tui.actions import first_key, for_scope
-from planner.tui.look import ACCENT, DIM, KEY_CHIP, STATUS_STYLE, STATUS_SYMBOL, literal
+from planner.tui.look import (
+    ACCENT,
+    DIM,
+    KEY_CHIP,
+    STATUS_STYLE,
+    STATUS_SYMBOL,
+    field_text,
+    literal,
+)
 from planner.tui.session import status_counts
 
 
@@ -37,9 +45,9 @@ class TitleBar(Horizontal):
         cannot hide them."""
         left = literal(" beltplan ", ACCENT)
         left.append("▸ ", style=DIM)
-        left.append(literal(name, "bold"))
+        left.append(field_text(name, "bold"))
         if file != name:
-            left.append(f"  {file}", style=DIM)
+            left.append(field_text(f"  {file}", DIM))
         if extra:
             left.append(f"  {extra}")
         self.query_one("#title-left", Static).update(left)

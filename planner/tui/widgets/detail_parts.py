@@ -28,6 +28,7 @@ from planner.plan import (
     odometer_points,
 )
 from planner.risk import REQUIRED_STATUSES
+from planner.safetext import shown
 from planner.tui.look import (
     BOLD,
     DIM,
@@ -35,6 +36,7 @@ from planner.tui.look import (
     STATUS_STYLE,
     WHAT_IT_MEANS,
     consequence_text,
+    field_text,
     literal,
     status_text,
 )
@@ -59,7 +61,7 @@ def heading(plan: VehiclePlan) -> Text:
     text = literal(plan.id, "bold")
     if plan.vehicle.label:
         text.append("  ")
-        text.append(literal(plan.vehicle.label, "bold"))
+        text.append(field_text(plan.vehicle.label, "bold"))
     text.append("   ")
     text.append_text(status_text(plan.status.value))
     text.append(" · ", style=DIM)
@@ -102,7 +104,7 @@ def engine(plan: VehiclePlan, fleet: Fleet) -> Table:
     name = literal(v.engine or "none (own fields)", "bold")
     if profile is not None and profile.description:
         name.append("  ")
-        name.append(literal(profile.description))
+        name.append(field_text(profile.description))
     interference = spec.interference.value + ("" if spec.interference_given else
                                               " (not recorded)")
     pairs: list[tuple[str, Text | str]] = [
@@ -130,7 +132,7 @@ def engine(plan: VehiclePlan, fleet: Fleet) -> Table:
         pairs.append(("interval", "none: replaced on condition"))
     job = []
     if spec.parts:
-        job.append(", ".join(spec.parts))
+        job.append(", ".join(shown(p) for p in spec.parts))  # line ends escaped
     if spec.labour_hours:
         job.append(f"{spec.labour_hours:g} h labour")
     if spec.parts_cost is not None:
@@ -231,7 +233,7 @@ def notes(record: dict[str, Any], plan: VehiclePlan) -> Text:
         text.append("\n")
     if plan.vehicle.notes:
         text.append("• file note: ", style=DIM)
-        text.append(literal(plan.vehicle.notes))
+        text.append(field_text(plan.vehicle.notes))
         text.append("\n")
     text.rstrip()
     return text or Text("no notes", style=DIM)
@@ -247,10 +249,10 @@ def jobs(plan: VehiclePlan, unit: str) -> RenderableType:
     table.add_column("reason", no_wrap=True)
     table.add_column("work and notes", ratio=1)
     for job in history:
-        words = literal(job.work)
+        words = field_text(job.work)
         if job.notes:
             words.append(" — " if job.work else "")
-            words.append(literal(job.notes, "italic"))
+            words.append(field_text(job.notes, "italic"))
         reason = literal(job.reason.value, "bold" if job.reason.value == "failed" else "")
         table.add_row(literal(job.date), literal(f"{job.odometer:,.0f}"), reason, words)
     return table

@@ -22,6 +22,7 @@ from planner.tui.look import (
     CONSEQUENCE_SYMBOL,
     DIM,
     consequence_text,
+    field_text,
     literal,
     status_text,
 )
@@ -101,7 +102,7 @@ class BoardLayout:
 
     def segment(self, s: Segment) -> Text:
         hours = hours_text(s.hours)
-        tail = literal(s.job.label, DIM)
+        tail = field_text(s.job.label, DIM)
         if s.day_count > 1:
             tail = Text.assemble((f"day {s.day_index} of {s.day_count} ", "bold"), tail)
         return self.job_line(s.job, Text(span_text(s).replace("-", "–")), hours, tail)
@@ -109,13 +110,13 @@ class BoardLayout:
     def unplaced(self, u: UnplacedJob) -> Text:
         hours = "– h" if u.job.hours is None else hours_text(u.job.hours)
         return self.job_line(u.job, Text("not placed", style="bold"), hours,
-                             literal(u.job.label, DIM))
+                             field_text(u.job.label, DIM))
 
     def reason(self, u: UnplacedJob) -> Text:
         """The line under a job not placed: why, in full width."""
         line = Text("      ")
         line.append(literal(u.reason, "bold"))
-        line.append(literal(f": {u.detail}", DIM))
+        line.append(field_text(f": {u.detail}", DIM))
         line.truncate(self.width, overflow="ellipsis")
         return line
 

@@ -11,7 +11,7 @@ from rich.table import Table
 from rich.text import Text
 
 from planner.export import CAUTION
-from planner.tui.look import ACCENT, DIM, literal, status_text
+from planner.tui.look import ACCENT, DIM, field_text, literal, status_text
 from planner.week import WeekPlan
 from planner.week_export import (
     OPENS,
@@ -43,7 +43,7 @@ def parts_order(week: WeekPlan) -> RenderableType:
         table.add_column("For", ratio=3)
         for p in week.parts_order:
             table.add_row("from stock" if p.in_stock else str(p.order_by), str(p.quantity),
-                          literal(p.part), literal(", ".join(p.vehicles)))
+                          field_text(p.part), field_text(", ".join(p.vehicles)))
         out.append(table)
     out.append(Text(""))
     out.append(literal(week.notes[0] if week.notes else "", DIM))
@@ -62,11 +62,11 @@ def call_list(week: WeekPlan) -> RenderableType:
     for k, c in enumerate(week.call_list):
         if k:
             table.add_row("", "")
-        who = literal(c.name or "(no name)", "bold")
+        who = field_text(c.name or "(no name)", "bold")
         for part in (c.phone, c.email):
             if part:
                 who.append("  ")
-                who.append(literal(part))
+                who.append(field_text(part))
         table.add_row(literal(c.vehicle_id, ACCENT), who)
         due = Text.assemble(status_text(c.status.value), "  ",
                             (c.action, "bold"), f": {c.status_words}, due {c.due_date or 'now'}")
