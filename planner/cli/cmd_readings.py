@@ -9,6 +9,7 @@ import sys
 from planner import importer, inuse
 from planner.cli.cmd_import import add_csv_options
 from planner.cli.common import load
+from planner.errors import PlannerError
 from planner.fileio import backup_path, read_csv, save_fleet_text
 
 EPILOG = """\
@@ -54,18 +55,38 @@ def run(args: argparse.Namespace) -> int:
         decoded.text, loaded.fleet, loaded.text, source=args.csv,
         column_map=importer.parse_map(args.map), date_order=args.date_order,
         today=dt.date.today(), decoded=decoded)
+    if result.added and not args.dry_run:
+        try:
+            save_fleet_text(loaded, result.text)
+        except PlannerError as err:
+            # stdout alone (a log, a script) must not read as if the readings were added.
+            print(f"Nothing was saved: {args.file} was not changed ({err.title}). The "
+                  f"{len(result.added)} reading{'s' * (len(result.added) != 1)} below were "
+                  "NOT added; run the command again.")
+            print("\n".join(not_added(result.report)))
+            raise
     print("\n".join(result.report))
     if args.dry_run:
         print(f"\nDry run: {args.file} was not changed.")
     elif not result.added:
         print(f"\nNothing to add: {args.file} was not changed.")
     else:
-        save_fleet_text(loaded, result.text)
         print(f"\nSaved {args.file} with {len(result.added)} new reading"
               f"{'s' * (len(result.added) != 1)} (the previous version is "
               f"{backup_path(loaded.path)}).")
         note_open_window(args.file, inuse.holder(loaded.path))
     return 0
+
+
+def not_added(report: tuple[str, ...] | list[str]) -> list[str]:
+    """The import report, its "added" words turned to "to add" (the save failed)."""
+    lines = list(report)
+    for k, line in enumerate(lines):
+        if line.startswith("Readings: "):
+            lines[k] = line.replace(" added,", " to add (not saved),", 1)
+        elif line.startswith("  added: "):
+            lines[k] = "  not added: " + line[len("  added: "):]
+    return lines
 
 
 def note_open_window(file: str, held: inuse.Holder | None) -> None:
