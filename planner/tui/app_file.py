@@ -53,7 +53,8 @@ class FileActions:
                         f"{'stays' if len(session.history) == 1 else 'stay'} here until you "
                         "choose.\n\n", style="")
         question.append("Keep a copy writes your version beside it as "
-                        f"{session.path.stem}.mine{session.path.suffix}, to compare. "
+                        f"{session.path.stem}.mine{session.path.suffix} (numbered -2, -3, … when "
+                        "that name is taken: an earlier copy is never replaced), to compare. "
                         "Reload reads the file on disk and drops your changes.")
 
         def done(answer: str | None) -> None:
