@@ -161,7 +161,7 @@ _NOFOLLOW = getattr(os, "O_NOFOLLOW", 0)
 
 def _kind(mode: int) -> str:
     if stat.S_ISFIFO(mode):
-        return "a pipe (FIFO)"
+        return "a FIFO"
     if stat.S_ISCHR(mode) or stat.S_ISBLK(mode):
         return "a device"
     if stat.S_ISSOCK(mode):
@@ -473,10 +473,12 @@ class _OwnerLost(OSError):
     """The new file cannot take the owner of the file it would replace."""
 
 
-def _take_metadata(fd: int, source: Path | None, mode: int | None, target: Path) -> None:
+def _take_metadata(fd: int, source: Path | None, mode: int | None, target: Path,
+                   copy: bool = False) -> None:
     """Give the open temporary file the owner, group, mode, ACLs and extended attributes of
     `source` (the file it replaces, or the file it copies); a new file gets `mode`, or 0644
-    less the umask."""
+    less the umask. An owner that cannot be kept raises `_OwnerLost`; for a `copy` (the user's
+    own file) it stays the user's, with the group's rights dropped unless the group was kept."""
     if source is None:
         os.fchmod(fd, (0o644 & ~_umask()) if mode is None else mode)
         return
@@ -487,7 +489,12 @@ def _take_metadata(fd: int, source: Path | None, mode: int | None, target: Path)
             try:
                 os.fchown(fd, info.st_uid, info.st_gid)
             except PermissionError:
-                raise _OwnerLost(errno.EPERM, str(info.st_uid)) from None
+                if not copy:
+                    raise _OwnerLost(errno.EPERM, str(info.st_uid)) from None
+                with contextlib.suppress(OSError):
+                    os.fchown(fd, -1, info.st_gid)
+                if os.fstat(fd).st_gid != info.st_gid:
+                    mode = stat.S_IMODE(info.st_mode) & ~0o070 if mode is None else mode
     os.fchmod(fd, stat.S_IMODE(info.st_mode) if mode is None else mode)
     _copy_xattrs(source, fd)
 
@@ -661,6 +668,7 @@ def save_fleet_text(loaded: LoadedFleet, text: str, fleet: Fleet | None = None) 
                 "The file was moved or deleted; nothing was saved. Save your text elsewhere, "
                 "then check where the file went.",
             )
+        _check_owner(path)
         try:
             write_atomic(backup_path(path), current, like=path, backup=True)
         except PlannerError as err:
@@ -672,6 +680,22 @@ def save_fleet_text(loaded: LoadedFleet, text: str, fleet: Fleet | None = None) 
         except PlannerError as err:
             raise PlannerError(f"{path} was not saved", err.message) from None
     return LoadedFleet(path=path, fleet=fleet, text=text, digest=digest_of(data), bom=loaded.bom)
+
+
+def _check_owner(path: Path) -> None:
+    """Refuse, before anything is written, a save that would hand the file to the saver."""
+    if not hasattr(os, "geteuid") or os.geteuid() == 0:
+        return
+    try:
+        info = os.stat(path)
+    except OSError:
+        return  # the write that follows says what is wrong
+    if info.st_uid != os.geteuid() or info.st_gid not in {os.getegid(), *os.getgroups()}:
+        raise PlannerError(f"{path} was not saved",
+                           f"it belongs to another user or group (uid {info.st_uid}, gid "
+                           f"{info.st_gid}) and saving it would hand it to you, with other "
+                           "rights: nothing was saved. Keep your version as a copy (another "
+                           "path), or ask its owner or an administrator to save it")
 
 
 @contextlib.contextmanager
@@ -746,7 +770,7 @@ def write_new(path: Path, data: bytes, like: Path | None = None) -> Path:
         try:
             with os.fdopen(fd, "wb") as fh:
                 _take_metadata(fh.fileno(), like, None if like is not None else
-                               0o666 & ~_umask(), candidate)
+                               0o666 & ~_umask(), candidate, copy=True)
                 fh.write(data)
                 fh.flush()
                 os.fsync(fh.fileno())

@@ -14,6 +14,7 @@ import stat
 import struct
 import subprocess
 import sys
+import tempfile
 import threading
 from pathlib import Path
 
@@ -417,3 +418,50 @@ def test_readings_that_were_not_saved_are_not_said_added_on_stdout(fleet, monkey
     assert code == 2
     assert " added," not in out and "  added:" not in out
     assert "nothing was saved" in out.lower()
+
+
+SAVE_AS_ANOTHER_USER = """\
+import sys
+from pathlib import Path
+from planner.errors import PlannerError
+from planner.fileio import load_fleet, save_fleet_text, write_new
+path = Path(sys.argv[1])
+loaded = load_fleet(path)
+try:
+    save_fleet_text(loaded, loaded.text + "# theirs\\n")
+except PlannerError as err:
+    print(err.render())
+print(write_new(path.with_name("fleet.mine.toml"), b"# theirs\\n", like=path))
+"""
+
+
+@as_root
+def test_a_save_that_would_hand_the_file_to_the_saver_is_refused():
+    """As uid 65534, a member of group 65534 only, on a root-owned 0660 file of that group."""
+    if not Path("/usr/bin/setpriv").exists():
+        pytest.skip("no setpriv (util-linux) to run as another user")
+    # pytest's own temporary folders are private to root: a folder the other user can reach.
+    with tempfile.TemporaryDirectory() as name:
+        folder = Path(name)
+        folder.chmod(0o777)
+        refused_save_and_own_copy(folder)
+
+
+def refused_save_and_own_copy(tmp_path: Path) -> None:
+    path = tmp_path / "fleet.toml"
+    path.write_bytes(OLD)
+    os.chown(path, 0, OTHER_GID)
+    path.chmod(0o660)
+    done = subprocess.run(["/usr/bin/setpriv", f"--reuid={OTHER_UID}", f"--regid={OTHER_GID}",
+                           "--clear-groups", sys.executable, "-c", SAVE_AS_ANOTHER_USER,
+                           str(path)], cwd=ROOT, capture_output=True, text=True, timeout=60,
+                          env={**os.environ, "BELTPLAN_CACHE": "off"})
+    assert done.returncode == 0, done.stderr
+    assert "belongs to another user" in done.stdout and "nothing was saved" in done.stdout
+    assert path.read_bytes() == OLD and not backup_path(path).exists()
+    info = path.stat()
+    assert (info.st_uid, info.st_gid, stat.S_IMODE(info.st_mode)) == (0, OTHER_GID, 0o660)
+    copy = tmp_path / "fleet.mine.toml"  # the saver's own, in the group it could keep
+    mine = copy.stat()
+    assert (mine.st_uid, mine.st_gid, stat.S_IMODE(mine.st_mode)) == (OTHER_UID, OTHER_GID,
+                                                                      0o660)
