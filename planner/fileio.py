@@ -480,7 +480,8 @@ def _take_metadata(fd: int, source: Path | None, mode: int | None, target: Path,
     less the umask. An owner that cannot be kept raises `_OwnerLost`; for a `copy` (the user's
     own file) it stays the user's, with the group's rights dropped unless the group was kept."""
     if source is None:
-        os.fchmod(fd, (0o644 & ~_umask()) if mode is None else mode)
+        if hasattr(os, "fchmod"):  # Windows before Python 3.13 has none: the default stays
+            os.fchmod(fd, (0o644 & ~_umask()) if mode is None else mode)
         return
     info = os.stat(source)
     if hasattr(os, "fchown"):
@@ -495,7 +496,8 @@ def _take_metadata(fd: int, source: Path | None, mode: int | None, target: Path,
                     os.fchown(fd, -1, info.st_gid)
                 if os.fstat(fd).st_gid != info.st_gid:
                     mode = stat.S_IMODE(info.st_mode) & ~0o070 if mode is None else mode
-    os.fchmod(fd, stat.S_IMODE(info.st_mode) if mode is None else mode)
+    if hasattr(os, "fchmod"):
+        os.fchmod(fd, stat.S_IMODE(info.st_mode) if mode is None else mode)
     _copy_xattrs(source, fd)
 
 
