@@ -19,6 +19,8 @@ import threading
 from pathlib import Path
 
 import pytest
+from hypothesis import assume, given, settings
+from hypothesis import strategies as st
 
 from planner import edit, fileio, fleetcache
 from planner.cli import main
@@ -465,3 +467,26 @@ def refused_save_and_own_copy(tmp_path: Path) -> None:
     mine = copy.stat()
     assert (mine.st_uid, mine.st_gid, stat.S_IMODE(mine.st_mode)) == (OTHER_UID, OTHER_GID,
                                                                       0o660)
+
+
+@given(st.text(st.characters(blacklist_categories=("Cs",), blacklist_characters="/\x00"),
+               min_size=1, max_size=255))
+@settings(max_examples=300, deadline=None)
+def test_backup_and_temporary_names_always_fit(name):
+    raw = os.fsencode(name)
+    assume(len(raw) <= fileio.NAME_MAX and name not in (".", ".."))
+    path = Path("/x") / name
+    backup = os.fsencode(backup_path(path).name)
+    assert len(backup) <= fileio.NAME_MAX
+    assert backup.endswith(b".bak")
+    if len(raw) + 4 <= fileio.NAME_MAX:
+        assert backup == raw + b".bak"  # a name with room keeps its plain backup name
+    # mkstemp adds 8 random characters (CPython Lib/tempfile.py, _RandomNameSequence).
+    temp = os.fsencode(fileio._temp_prefix(path)) + b"x" * 8 + fileio.TEMP_SUFFIX.encode()
+    assert len(temp) <= fileio.NAME_MAX
+
+
+@given(st.text("ab", min_size=252, max_size=255), st.text("ab", min_size=252, max_size=255))
+def test_two_long_names_never_share_a_backup(one, other):
+    assume(one != other)
+    assert backup_path(Path(one)) != backup_path(Path(other))
