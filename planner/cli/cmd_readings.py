@@ -60,9 +60,10 @@ def run(args: argparse.Namespace) -> int:
             save_fleet_text(loaded, result.text)
         except PlannerError as err:
             # stdout alone (a log, a script) must not read as if the readings were added.
-            print(f"Nothing was saved: {args.file} was not changed ({err.title}). The "
-                  f"{len(result.added)} reading{'s' * (len(result.added) != 1)} below were "
-                  "NOT added; run the command again.")
+            n = len(result.added)
+            print(f"Nothing was saved by this run ({err.title}): the {n} reading"
+                  f"{'s' * (n != 1)} below {'were' if n != 1 else 'was'} NOT added. Run the "
+                  "command again (readings already in the file are skipped).")
             print("\n".join(not_added(result.report)))
             raise
     print("\n".join(result.report))
