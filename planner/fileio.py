@@ -129,6 +129,8 @@ def read_capped(path: Path, limit: int, too_large: str, what: str,
         if not stat.S_ISREG(info.st_mode):
             raise PlannerError(f"{name} is not a regular file ({_kind(info.st_mode)})",
                                f"Only a file on disk is read, not a device or a pipe. {what}")
+        if info.st_size > limit:  # known too large before a byte is read
+            raise PlannerError(f"{name} is too large ({info.st_size:,} bytes)", too_large)
         if _NONBLOCK and fcntl is not None:
             fcntl.fcntl(fd, fcntl.F_SETFL, fcntl.fcntl(fd, fcntl.F_GETFL) & ~_NONBLOCK)
         chunks, total = [], 0
@@ -138,10 +140,8 @@ def read_capped(path: Path, limit: int, too_large: str, what: str,
                 break
             chunks.append(chunk)
             total += len(chunk)
-            if total > limit:
-                size = max(info.st_size, total)
-                shown = f"{size:,} bytes" if info.st_size > limit else f"over {limit:,} bytes"
-                raise PlannerError(f"{name} is too large ({shown})", too_large)
+            if total > limit:  # it grew, or its size was not told (/proc)
+                raise PlannerError(f"{name} is too large (over {limit:,} bytes)", too_large)
         return b"".join(chunks)
     except PlannerError:
         raise
