@@ -8,6 +8,7 @@ from typing import TYPE_CHECKING
 from rich.text import Text
 
 from planner.errors import PlannerError
+from planner.fileio import backup_path
 from planner.tui.screens.dialogs import AskDialog
 from planner.tui.screens.form import FormScreen
 
@@ -40,7 +41,7 @@ class FileActions:
         self.refresh_views()
         self.keep_in_cache()  # the saved text's fleet: the next open need not parse it
         self.say(f"Saved {session.path} (the previous version is in "
-                 f"{session.path.name}.bak).")
+                 f"{backup_path(session.path).name}).")
         if then_quit:
             self.exit()
         return True
