@@ -16,6 +16,8 @@ import glob
 import hashlib
 import os
 import re
+import socket
+import stat
 import tempfile
 import time
 import tomllib
@@ -64,29 +66,9 @@ def digest_of(data: bytes) -> str:
 def read_text(path: Path) -> tuple[str, bytes, bool]:
     """Read a text file as UTF-8; return (text without BOM, raw bytes, had BOM)."""
     name = str(path)
-    try:
-        if path.is_dir():
-            raise PlannerError(f"{name} is a folder, not a fleet file",
-                               "Give the path of a .toml file.")
-        size = path.stat().st_size
-        if size > MAX_FILE_BYTES:
-            raise PlannerError(f"{name} is too large ({size:,} bytes)",
-                               f"A fleet file is at most {MAX_FILE_BYTES // 2**20} MiB: check "
-                               "that this is the fleet file, or split the fleet.")
-        raw = path.read_bytes()
-    except FileNotFoundError:
-        raise PlannerError(f"{name}: no such file",
-                           "Check the path, or create a fleet file (see the README).") from None
-    except NotADirectoryError:
-        raise PlannerError(f"{name}: no such file",
-                           "A part of the path is a file, not a folder: check the path.") from None
-    except PermissionError:
-        raise PlannerError(f"{name}: permission denied",
-                           "Check the file's permissions, or ask for read access.") from None
-    except OSError as exc:
-        raise PlannerError(f"{name}: cannot be read",
-                           f"{exc.strerror or exc}; check the disk or network share, then try "
-                           "again.") from None
+    raw = read_capped(path, MAX_FILE_BYTES, "A fleet file is at most "
+                      f"{MAX_FILE_BYTES // 2**20} MiB: check that this is the fleet file, or "
+                      "split the fleet.", what="Give the path of a .toml file.")
     if raw.startswith(_UTF16_BOMS) or _looks_utf16(raw):
         raise PlannerError(f"{name} is saved as UTF-16, not UTF-8",
                            "Save the file as UTF-8 text (in most editors: Save as, then "
@@ -112,6 +94,79 @@ def read_text(path: Path) -> tuple[str, bytes, bool]:
         ) from None
     bom = text.startswith(BOM)
     return (text[1:] if bom else text), raw, bom
+
+
+def read_capped(path: Path, limit: int, too_large: str, what: str,
+                noun: str = "fleet file", missing: str = "Check the path, or create a fleet "
+                "file (see the README).") -> bytes:
+    """The bytes of the regular file at `path`, at most `limit` of them (counted as read, not
+    taken from the size the system reports: a /proc file says 0, a growing file grows).
+
+    Anything but a regular file is refused before a byte is read: a folder, a device such as
+    /dev/zero (endless), a FIFO (opened without waiting for a writer), a socket.
+    """
+    name = str(path)
+    try:
+        fd = os.open(path, os.O_RDONLY | _NONBLOCK | _NOCTTY | _CLOEXEC)
+    except FileNotFoundError:
+        raise PlannerError(f"{name}: no such file", missing) from None
+    except NotADirectoryError:
+        raise PlannerError(f"{name}: no such file",
+                           "A part of the path is a file, not a folder: check the path.") from None
+    except IsADirectoryError:
+        raise PlannerError(f"{name} is a folder, not a {noun}", what) from None
+    except PermissionError:
+        raise PlannerError(f"{name}: permission denied",
+                           "Check the file's permissions, or ask for read access.") from None
+    except OSError as exc:
+        raise PlannerError(f"{name}: cannot be read",
+                           f"{exc.strerror or exc}; check the disk or network share, then try "
+                           "again.") from None
+    try:
+        info = os.fstat(fd)
+        if stat.S_ISDIR(info.st_mode):
+            raise PlannerError(f"{name} is a folder, not a {noun}", what)
+        if not stat.S_ISREG(info.st_mode):
+            raise PlannerError(f"{name} is not a regular file ({_kind(info.st_mode)})",
+                               f"Only a file on disk is read, not a device or a pipe. {what}")
+        if info.st_size > limit:  # known too large before a byte is read
+            raise PlannerError(f"{name} is too large ({info.st_size:,} bytes)", too_large)
+        if _NONBLOCK and fcntl is not None:
+            fcntl.fcntl(fd, fcntl.F_SETFL, fcntl.fcntl(fd, fcntl.F_GETFL) & ~_NONBLOCK)
+        chunks, total = [], 0
+        while True:
+            chunk = os.read(fd, min(1 << 20, limit + 1 - total))
+            if not chunk:
+                break
+            chunks.append(chunk)
+            total += len(chunk)
+            if total > limit:  # it grew, or its size was not told (/proc)
+                raise PlannerError(f"{name} is too large (over {limit:,} bytes)", too_large)
+        return b"".join(chunks)
+    except PlannerError:
+        raise
+    except OSError as exc:
+        raise PlannerError(f"{name}: cannot be read",
+                           f"{exc.strerror or exc}; check the disk or network share, then try "
+                           "again.") from None
+    finally:
+        os.close(fd)
+
+
+_NONBLOCK = getattr(os, "O_NONBLOCK", 0)
+_NOCTTY = getattr(os, "O_NOCTTY", 0)
+_CLOEXEC = getattr(os, "O_CLOEXEC", 0)
+_NOFOLLOW = getattr(os, "O_NOFOLLOW", 0)
+
+
+def _kind(mode: int) -> str:
+    if stat.S_ISFIFO(mode):
+        return "a FIFO"
+    if stat.S_ISCHR(mode) or stat.S_ISBLK(mode):
+        return "a device"
+    if stat.S_ISSOCK(mode):
+        return "a socket"
+    return "not a file"
 
 
 _UTF16_BOMS = (b"\xff\xfe", b"\xfe\xff")
@@ -309,6 +364,7 @@ def load_fleet(path: str | os.PathLike[str],
     """
     p = Path(path)
     text, raw, bom = read_text(p)
+    remove_stale_temps(p)
     digest = digest_of(raw)
     fleet = known(digest) if known is not None else None
     if fleet is not None:
@@ -325,34 +381,53 @@ def load_fleet(path: str | os.PathLike[str],
     return LoadedFleet(path=p, fleet=fleet, text=text, digest=digest, bom=bom)
 
 
-def write_atomic(path: str | os.PathLike[str], data: bytes) -> None:
+def write_atomic(path: str | os.PathLike[str], data: bytes, *, like: Path | None = None,
+                 mode: int | None = None, backup: bool = False) -> None:
     """Replace `path` with `data` so that it is either the old file or the new one, whole.
 
-    The data goes to a temporary file in the same folder, is flushed and fsynced, then renamed
-    over the target (`os.replace` is atomic on POSIX and Windows); the folder is fsynced so the
-    rename itself survives a power cut. A symbolic link is followed: its target is replaced and
-    the link stays. On any failure the temporary file is removed and a `PlannerError` says what
-    happened; the previous file is then untouched.
+    The data goes to a temporary file in the same folder (created with `O_EXCL`, never through
+    a link), is flushed and fsynced, takes the owner, group, mode, ACLs and extended attributes
+    of the file it replaces (or of `like`, or `mode` for a new file) and is renamed over the
+    target (`os.replace` is atomic on POSIX and Windows); the folder is fsynced so the rename
+    itself survives a power cut. On any failure the temporary file is removed and a
+    `PlannerError` says what happened; the previous file is then untouched.
+
+    A symbolic link at `path` is followed (its target replaced, the link kept) only when it
+    belongs to the user or to the owner of its folder (the rule of Linux's protected_symlinks):
+    a link planted by someone else is refused. A file with other hard links is refused (the
+    rename would split it); so is a replacement that cannot keep the file's owner. With
+    `backup=True` (a backup copy) a link or hard link at `path` is replaced as a name, never
+    written through.
     """
     target = Path(path)
-    if target.is_symlink():
-        target = Path(os.path.realpath(target))
+    if not backup:
+        target = _followed(target)
     folder = target.parent if str(target.parent) else Path(".")
-    _check_writable(target, folder)
+    _check_writable(target, folder, backup)
+    try:
+        current = os.lstat(target)
+    except OSError:
+        current = None
+    if current is not None and not backup and current.st_nlink > 1 \
+            and stat.S_ISREG(current.st_mode):
+        raise PlannerError(f"cannot write {target}",
+                           f"it has {current.st_nlink - 1} other hard link"
+                           f"{'s' * (current.st_nlink > 2)} (the same file under another "
+                           "name); replacing it would split them, so nothing was saved. Save "
+                           "to another path, or make it a file of its own first (copy it, "
+                           "then move the copy over it)")
+    source = like if like is not None else (target if current is not None
+                                            and stat.S_ISREG(current.st_mode) else None)
     fd = None
     tmp = None
     try:
-        fd, tmp = tempfile.mkstemp(prefix=f".{target.name}.", suffix=TEMP_SUFFIX, dir=folder)
+        fd, tmp = tempfile.mkstemp(prefix=_temp_prefix(target), suffix=TEMP_SUFFIX, dir=folder)
         with os.fdopen(fd, "wb") as fh:
             fd = None
             fh.write(data)
             fh.flush()
+            _take_metadata(fh.fileno(), source, mode, target)
             os.fsync(fh.fileno())
-        try:
-            mode = target.stat().st_mode & 0o7777
-        except FileNotFoundError:
-            mode = 0o644 & ~_umask()
-        os.chmod(tmp, mode)
         os.replace(tmp, target)
         tmp = None
         _fsync_dir(folder)
@@ -366,10 +441,116 @@ def write_atomic(path: str | os.PathLike[str], data: bytes) -> None:
                 os.unlink(tmp)
             except OSError:
                 pass
-    _remove_stale_temps(target)
+    remove_stale_temps(target)
 
 
-def _check_writable(target: Path, folder: Path) -> None:
+def _followed(target: Path) -> Path:
+    """The file a path names, through links that belong to the user or the folder's owner."""
+    for _ in range(40):  # as the system's own limit on links in a row (ELOOP)
+        try:
+            info = os.lstat(target)
+        except OSError:
+            return target
+        if not stat.S_ISLNK(info.st_mode):
+            return target
+        folder = target.parent if str(target.parent) else Path(".")
+        if hasattr(os, "geteuid"):
+            try:
+                folder_owner = os.stat(folder).st_uid
+            except OSError:
+                folder_owner = -1
+            if info.st_uid not in (os.geteuid(), folder_owner):
+                raise PlannerError(f"cannot write {target}",
+                                   f"it is a symbolic link that belongs to another user (uid "
+                                   f"{info.st_uid}), not to you or the folder's owner; "
+                                   "beltplan does not write through it: choose another path, "
+                                   "or remove the link")
+        target = folder / os.readlink(target)
+    raise PlannerError(f"cannot write {target}", "too many symbolic links in a row")
+
+
+class _OwnerLost(OSError):
+    """The new file cannot take the owner of the file it would replace."""
+
+
+def _take_metadata(fd: int, source: Path | None, mode: int | None, target: Path,
+                   copy: bool = False) -> None:
+    """Give the open temporary file the owner, group, mode, ACLs and extended attributes of
+    `source` (the file it replaces, or the file it copies); a new file gets `mode`, or 0644
+    less the umask. An owner that cannot be kept raises `_OwnerLost`; for a `copy` (the user's
+    own file) it stays the user's, with the group's rights dropped unless the group was kept."""
+    if source is None:
+        if hasattr(os, "fchmod"):  # Windows before Python 3.13 has none: the default stays
+            os.fchmod(fd, (0o644 & ~_umask()) if mode is None else mode)
+        return
+    info = os.stat(source)
+    if hasattr(os, "fchown"):
+        mine = os.fstat(fd)
+        if (mine.st_uid, mine.st_gid) != (info.st_uid, info.st_gid):
+            try:
+                os.fchown(fd, info.st_uid, info.st_gid)
+            except PermissionError:
+                if not copy:
+                    raise _OwnerLost(errno.EPERM, str(info.st_uid)) from None
+                with contextlib.suppress(OSError):
+                    os.fchown(fd, -1, info.st_gid)
+                if os.fstat(fd).st_gid != info.st_gid:
+                    mode = stat.S_IMODE(info.st_mode) & ~0o070 if mode is None else mode
+    if hasattr(os, "fchmod"):
+        os.fchmod(fd, stat.S_IMODE(info.st_mode) if mode is None else mode)
+    _copy_xattrs(source, fd)
+
+
+def _copy_xattrs(source: Path, fd: int) -> None:
+    """Extended attributes (POSIX ACLs among them: `system.posix_acl_access`), where the
+    system has them; one the system will not set (a `security.` or `trusted.` name without the
+    privilege, a file system without them) is skipped."""
+    if not hasattr(os, "listxattr"):
+        return
+    try:
+        names = os.listxattr(source)
+    except OSError:
+        return
+    for name in names:
+        try:
+            os.setxattr(fd, name, os.getxattr(source, name))
+        except OSError:
+            continue
+
+
+NAME_MAX = 255  # bytes in one name: Linux's ext4, xfs, btrfs and tmpfs; macOS's APFS counts 255
+TEMP_ROOM = 40  # ".", ".<host 6>-<pid up to 10>.", mkstemp's 8 random characters, ".tmp"
+
+
+def _fits(name: str, extra: int) -> str:
+    """`name`, or a shortened form of it ending in a hash of the whole, so that `extra` more
+    bytes still make a legal name (a character cut in two is dropped)."""
+    raw = os.fsencode(name)
+    if len(raw) + extra <= NAME_MAX:
+        return name
+    tag = "~" + hashlib.sha256(raw).hexdigest()[:10]
+    keep = raw[: max(1, NAME_MAX - extra - len(tag))]
+    try:
+        raw.decode("utf-8")
+    except UnicodeDecodeError:
+        return os.fsdecode(keep) + tag  # not UTF-8: the bytes as they are
+    return keep.decode("utf-8", "ignore") + tag
+
+
+_HOST = hashlib.sha256(socket.gethostname().encode()).hexdigest()[:6]
+
+
+def _temp_prefix(target: Path) -> str:
+    """`.<name>.<host>-<pid>.`: whose temporary file it is, so a leftover of a process that
+    has ended can go at once."""
+    return f".{_short_name(target)}.{_HOST}-{os.getpid()}."
+
+
+def _short_name(target: Path) -> str:
+    return _fits(target.name, TEMP_ROOM)
+
+
+def _check_writable(target: Path, folder: Path, backup: bool = False) -> None:
     """Refuse early, with a clear reason, what would fail half-way."""
     if not folder.exists():
         raise PlannerError(f"cannot write {target}",
@@ -378,11 +559,11 @@ def _check_writable(target: Path, folder: Path) -> None:
     if not folder.is_dir():
         raise PlannerError(f"cannot write {target}",
                            f"{_first_file(folder)} is a file, not a folder: choose another path")
-    if target.is_dir():
+    if target.is_dir() and not (backup and target.is_symlink()):
         raise PlannerError(f"cannot write {target}",
                            "it is a folder: give the path of a file inside it, e.g. "
                            f"{target / 'plan.csv'}")
-    if target.exists() and not os.access(target, os.W_OK):
+    if not backup and target.exists() and not os.access(target, os.W_OK):
         raise PlannerError(f"cannot write {target}",
                            "the file is read-only: make it writable (or save to another "
                            "path); it is unchanged")
@@ -417,24 +598,45 @@ def _why(exc: OSError, target: Path, folder: Path) -> str:
     if exc.errno in (errno.ENOENT, errno.ENOTDIR) and folder.is_dir():
         words = f"the system refused to create a file in {{folder}} ({exc.strerror}): choose " \
             "another folder"
+    if isinstance(exc, _OwnerLost):
+        return (f"{target} belongs to another user (uid {exc.strerror}) and a save would "
+                "make it yours: nothing was saved. Save to another path (your copy), or ask "
+                "its owner or an administrator to save it")
     detail = words.format(folder=folder, target=target) if words else \
         f"{exc.strerror or exc}: check the disk, then try again"
     return f"{detail}. The previous file, if any, is unchanged."
 
 
-def _remove_stale_temps(target: Path) -> None:
+def remove_stale_temps(target: Path) -> None:
     """Remove temporary files that a killed or crashed save left beside `target`.
 
-    Only this module's own names (`.<name>.<random>.tmp`), and only old ones: a younger one may
-    belong to a save still running in another process.
+    Only this module's own names (`.<name>.<host>-<pid>.<random>.tmp`): at once when the
+    process named in it, on this host, has ended; otherwise (another host, a live process,
+    a name without a process) only once ten minutes old, as a save may still be running.
     """
     try:
         now = time.time()
-        for leftover in target.parent.glob(f".{glob.escape(target.name)}.*{TEMP_SUFFIX}"):
-            if now - leftover.stat().st_mtime > STALE_TEMP_SECONDS:
+        short = _short_name(target)
+        for leftover in target.parent.glob(f".{glob.escape(short)}.*{TEMP_SUFFIX}"):
+            owner = leftover.name[len(short) + 2:].split(".", 1)[0]
+            if _ended(owner) or now - leftover.lstat().st_mtime > STALE_TEMP_SECONDS:
                 leftover.unlink()
     except OSError:
         pass
+
+
+def _ended(owner: str) -> bool:
+    """True when `<host>-<pid>` names a process of this host that is no longer running."""
+    host, _, pid = owner.partition("-")
+    if host != _HOST or not pid.isdigit() or int(pid) == os.getpid():
+        return False
+    try:
+        os.kill(int(pid), 0)
+    except ProcessLookupError:
+        return True
+    except (OSError, OverflowError):  # alive under another user, or not a process id
+        return False
+    return False
 
 
 def save_fleet_text(loaded: LoadedFleet, text: str, fleet: Fleet | None = None) -> LoadedFleet:
@@ -453,13 +655,13 @@ def save_fleet_text(loaded: LoadedFleet, text: str, fleet: Fleet | None = None) 
     data = ((BOM if loaded.bom else "") + text).encode("utf-8")
     with _locked(path):
         try:
-            current = path.read_bytes()
-        except FileNotFoundError:
+            current: bytes | None = read_capped(path, MAX_FILE_BYTES, "", "")
+        except PlannerError as err:
+            if not err.title.endswith("no such file"):
+                raise PlannerError(f"{path} was not saved",
+                                   f"it could not be read back to check it: {err.title}"
+                                   f"{': ' + err.message if err.message else ''}") from None
             current = None
-        except OSError as exc:
-            raise PlannerError(f"{path} was not saved",
-                               f"it could not be read back to check it: "
-                               f"{exc.strerror or exc}") from None
         if current is None or digest_of(current) != loaded.digest:
             raise PlannerError(
                 f"{path} changed on disk since it was read",
@@ -468,8 +670,9 @@ def save_fleet_text(loaded: LoadedFleet, text: str, fleet: Fleet | None = None) 
                 "The file was moved or deleted; nothing was saved. Save your text elsewhere, "
                 "then check where the file went.",
             )
+        _check_owner(path)
         try:
-            write_atomic(backup_path(path), current)
+            write_atomic(backup_path(path), current, like=path, backup=True)
         except PlannerError as err:
             raise PlannerError(f"{path} was not saved",
                                f"the backup copy {backup_path(path)} could not be written: "
@@ -479,6 +682,22 @@ def save_fleet_text(loaded: LoadedFleet, text: str, fleet: Fleet | None = None) 
         except PlannerError as err:
             raise PlannerError(f"{path} was not saved", err.message) from None
     return LoadedFleet(path=path, fleet=fleet, text=text, digest=digest_of(data), bom=loaded.bom)
+
+
+def _check_owner(path: Path) -> None:
+    """Refuse, before anything is written, a save that would hand the file to the saver."""
+    if not hasattr(os, "geteuid") or os.geteuid() == 0:
+        return
+    try:
+        info = os.stat(path)
+    except OSError:
+        return  # the write that follows says what is wrong
+    if info.st_uid != os.geteuid() or info.st_gid not in {os.getegid(), *os.getgroups()}:
+        raise PlannerError(f"{path} was not saved",
+                           f"it belongs to another user or group (uid {info.st_uid}, gid "
+                           f"{info.st_gid}) and saving it would hand it to you, with other "
+                           "rights: nothing was saved. Keep your version as a copy (another "
+                           "path), or ask its owner or an administrator to save it")
 
 
 @contextlib.contextmanager
@@ -523,7 +742,105 @@ def _locked(path: Path) -> Iterator[None]:
 
 
 def backup_path(path: Path) -> Path:
-    return path.with_name(path.name + BACKUP_SUFFIX)
+    """`<name>.bak` beside the file; for a name near the length limit, a shortened name with
+    a hash of the whole (`_fits`), so that a legal fleet file name can always be backed up."""
+    return path.with_name(_fits(path.name, len(BACKUP_SUFFIX)) + BACKUP_SUFFIX)
+
+
+def write_new(path: Path, data: bytes, like: Path | None = None) -> Path:
+    """Write `data` to a new file at `path`, or, if that name is taken (by a file, a link,
+    anything), at `<stem>-2<suffix>`, `-3`, …: an existing file is never replaced and a link
+    never followed. The file takes `like`'s owner, group, mode and attributes (where the system
+    allows). Returns the path written."""
+    stem, suffix = path.stem, path.suffix
+    if like is not None and not like.is_file():
+        like = None  # gone meanwhile: a file of the user's own
+    folder = path.parent if str(path.parent) else Path(".")
+    first = folder / (_fits(stem, len(os.fsencode(suffix))) + suffix)
+    _check_writable(first, folder)
+    for n in range(1, 1000):
+        name = _fits(stem + ("" if n == 1 else f"-{n}"), len(os.fsencode(suffix))) + suffix
+        candidate = folder / name
+        try:
+            fd = os.open(candidate, os.O_WRONLY | os.O_CREAT | os.O_EXCL | _NOFOLLOW | _CLOEXEC,
+                         0o600)
+        except FileExistsError:
+            continue
+        except OSError as exc:
+            raise PlannerError(f"cannot write {candidate}", _why(exc, candidate, folder)) \
+                from None
+        try:
+            with os.fdopen(fd, "wb") as fh:
+                _take_metadata(fh.fileno(), like, None if like is not None else
+                               0o666 & ~_umask(), candidate, copy=True)
+                fh.write(data)
+                fh.flush()
+                os.fsync(fh.fileno())
+        except OSError as exc:
+            with contextlib.suppress(OSError):
+                os.unlink(candidate)
+            raise PlannerError(f"cannot write {candidate}", _why(exc, candidate, folder)) \
+                from None
+        _fsync_dir(folder)
+        return candidate
+    raise PlannerError(f"cannot write {path}", "999 numbered copies exist beside it already: "
+                       "move some away, then try again")
+
+
+def write_output(path: str | os.PathLike[str], data: bytes) -> None:
+    """Write an output the user named (`-o`, an export): a regular file or a new name is
+    replaced atomically (`write_atomic`); a standard stream (`/dev/stdout`, `/dev/fd/N`) is
+    written to as it is open; a FIFO, terminal or other device is written into in place,
+    never replaced."""
+    name = os.fspath(path)
+    fd_number = _stream_number(name)
+    if fd_number is not None:
+        _write_all(fd_number, data, name)
+        return
+    target = Path(name)
+    try:
+        info = os.stat(_followed(target))
+    except OSError:
+        info = None
+    if info is None or stat.S_ISREG(info.st_mode) or stat.S_ISDIR(info.st_mode):
+        write_atomic(target, data)
+        return
+    try:
+        # No O_CREAT, no O_TRUNC: into what is there. A FIFO waits for its reader, as with
+        # any program writing to one.
+        fd = os.open(target, os.O_WRONLY | _NOCTTY | _CLOEXEC)
+    except OSError as exc:
+        raise PlannerError(f"cannot write {target}",
+                           f"{exc.strerror or exc}; nothing was written") from None
+    try:
+        _write_all(fd, data, name)
+    finally:
+        os.close(fd)
+
+
+_STREAMS = {"/dev/stdout": 1, "/dev/stderr": 2}
+
+
+def _stream_number(name: str) -> int | None:
+    """The descriptor a path names when it means one of this process's own streams."""
+    if name in _STREAMS:
+        return _STREAMS[name]
+    for head in ("/dev/fd/", "/proc/self/fd/"):
+        if name.startswith(head) and name[len(head):].isdigit():
+            return int(name[len(head):])
+    return None
+
+
+def _write_all(fd: int, data: bytes, name: str) -> None:
+    view = memoryview(data)
+    try:
+        while view:
+            view = view[os.write(fd, view):]
+    except BrokenPipeError:
+        raise PlannerError(f"cannot write {name}",
+                           "the program reading it stopped reading") from None
+    except OSError as exc:
+        raise PlannerError(f"cannot write {name}", exc.strerror or str(exc)) from None
 
 
 def _umask() -> int:
@@ -560,18 +877,9 @@ def read_csv(path: str) -> Decoded:
     if p.suffix.lower() == ".toml":
         raise PlannerError(f"{path} is a fleet file (TOML), not CSV",
                            "It needs no import: use it with beltplan check or beltplan list.")
-    try:
-        if p.is_dir():
-            raise PlannerError(f"{path} is a folder", "Give the path of a .csv file.")
-        size = p.stat().st_size
-        if size > MAX_CSV_BYTES:
-            raise PlannerError(f"{path} is too large ({size:,} bytes)",
-                               f"Import at most {MAX_CSV_BYTES // 2**20} MiB at a time.")
-        raw = p.read_bytes()
-    except FileNotFoundError:
-        raise PlannerError(f"{path}: no such file", "Check the path of the CSV file.") from None
-    except OSError as exc:
-        raise PlannerError(f"{path}: cannot be read", exc.strerror or str(exc)) from None
+    raw = read_capped(p, MAX_CSV_BYTES, f"Import at most {MAX_CSV_BYTES // 2**20} MiB at a "
+                      "time.", "Give the path of a .csv file.", noun="CSV file",
+                      missing="Check the path of the CSV file.")
     from planner.importer import decode_bytes  # the importer loads only when a CSV is read
 
     return decode_bytes(raw, path)

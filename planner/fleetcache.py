@@ -27,6 +27,7 @@ import hmac
 import os
 import pickle
 import secrets
+import stat
 import sys
 import tempfile
 import time
@@ -46,26 +47,79 @@ _fingerprint: bytes | None = None
 
 
 def folder() -> Path | None:
-    """The cache folder (created, private), or None when the cache is off or unusable."""
+    """The cache folder (private to the user), or None when the cache is off or unusable.
+
+    `BELTPLAN_CACHE`, else `$XDG_CACHE_HOME/beltplan` (an absolute XDG_CACHE_HOME only, as the
+    XDG Base Directory specification says), else `$HOME/.cache/beltplan`; with no usable home
+    (HOME empty or relative) there is no cache. A folder is used only when it is the user's
+    and nobody else can enter it; a shared one (the user's, or a sticky one like /tmp) gets
+    a private folder of the user's inside it, `beltplan-<uid>`. A symbolic link
+    is followed only when it belongs to the user. No existing folder's mode is ever changed;
+    only a folder created here is made private.
+    """
     setting = os.environ.get(ENV, "")
     if setting.strip().lower() == "off":
         return None
     try:
         if setting:
             base = Path(setting).expanduser()
+            if not base.is_absolute():
+                base = Path.cwd() / base
         else:
             xdg = os.environ.get("XDG_CACHE_HOME", "")
-            base = (Path(xdg) if xdg else Path.home() / ".cache") / "beltplan"
-        base.mkdir(mode=0o700, parents=True, exist_ok=True)
-        info = base.stat()
-        if hasattr(os, "getuid"):
-            if info.st_uid != os.getuid():
-                return None  # someone else's folder
-            if info.st_mode & 0o077:  # the entries hold the fleet: for the user's eyes only
-                base.chmod(0o700)
+            if xdg and os.path.isabs(xdg):
+                parent = Path(xdg)
+            else:
+                if os.environ.get("HOME", None) == "":
+                    return None  # an empty HOME would put the cache in the current folder
+                home = str(Path.home())
+                if not os.path.isabs(home):
+                    return None
+                parent = Path(home) / ".cache"
+            if not _own_folder(parent, create=True, private=False):
+                return None
+            base = parent / "beltplan"
+        if _own_folder(base, create=True, private=True):
+            return base
+        inner = base / f"beltplan-{os.getuid()}" if hasattr(os, "getuid") else None
+        if inner is not None and _own_folder(base, create=False, private=False,
+                                            anyone=True) \
+                and _own_folder(inner, create=True, private=True):
+            return inner
     except (OSError, RuntimeError):  # RuntimeError: no home folder to be found
         return None
-    return base
+    return None
+
+
+def _own_folder(path: Path, create: bool, private: bool, anyone: bool = False) -> bool:
+    """True when `path` is a folder fit for use: created here (mode 0700), or existing and the
+    user's (and, if `private`, entered by nobody else). With `anyone`, an existing folder of
+    the user's own, or a sticky one of any owner such as /tmp, passes (a private folder of the
+    user's is then made inside it). A link at `path`
+    counts only when it belongs to the user."""
+    if create:
+        try:
+            os.mkdir(path, 0o700)
+        except FileExistsError:
+            pass
+        else:
+            os.chmod(path, 0o700)  # made here, so ours to set (mkdir's mode passes the umask)
+            return True
+    try:
+        link = os.lstat(path)
+        info = os.stat(path)
+    except OSError:
+        return False
+    if not stat.S_ISDIR(info.st_mode):
+        return False
+    if not hasattr(os, "getuid"):
+        return True
+    uid = os.getuid()
+    if stat.S_ISLNK(link.st_mode) and link.st_uid != uid:
+        return False  # planted by someone else: never followed
+    if anyone:  # the user's own shared folder, or one like /tmp (sticky: names stay theirs)
+        return info.st_uid == uid or bool(info.st_mode & stat.S_ISVTX)
+    return info.st_uid == uid and not (private and info.st_mode & 0o077)
 
 
 def fingerprint() -> bytes:
@@ -157,8 +211,8 @@ def _put(digest: str, fleet: Fleet) -> bool:
         return False
     payload = pickle.dumps(fleet, protocol=pickle.HIGHEST_PROTOCOL)
     entry = entry_path(base, digest)
-    write_atomic(entry, MAGIC + fingerprint() + _sign(key, digest, payload) + payload)
-    entry.chmod(0o600)
+    write_atomic(entry, MAGIC + fingerprint() + _sign(key, digest, payload) + payload,
+                 mode=0o600)
     _prune(base)
     return True
 

@@ -125,16 +125,20 @@ def test_the_fingerprint_changes_with_any_byte_of_the_planner_source(tmp_path):
     assert fleetcache.fingerprint_of(copy) != fleetcache.fingerprint()
 
 
-def test_a_folder_others_can_read_is_made_private_and_entries_are_the_users_only(
+def test_a_folder_others_can_read_keeps_its_mode_and_entries_are_the_users_only(
         tmp_path, monkeypatch):
+    """A folder the cache did not create is never chmodded: a private one is made inside."""
     shared = tmp_path / "shared-cache"
     shared.mkdir()
     shared.chmod(0o777)
     monkeypatch.setenv(fleetcache.ENV, str(shared))
     loaded = load_fleet(COURIER)
     assert fleetcache.put(loaded.digest, loaded.fleet)
-    assert stat.S_IMODE(shared.stat().st_mode) == 0o700
-    entry = fleetcache.entry_path(shared, loaded.digest)
+    assert stat.S_IMODE(shared.stat().st_mode) == 0o777
+    inner = fleetcache.folder()
+    assert inner is not None and inner.parent == shared
+    assert stat.S_IMODE(inner.stat().st_mode) == 0o700
+    entry = fleetcache.entry_path(inner, loaded.digest)
     assert stat.S_IMODE(entry.stat().st_mode) == 0o600
 
 

@@ -1,7 +1,7 @@
 """Saves that survive faults: afterwards the file is the old one or the new one, whole.
 
 Faults are injected at each step of `fileio.write_atomic` (create the temporary file, write,
-flush, fsync, copy the mode, rename) and of `fileio.save_fleet_text` (read back, back up, write):
+flush, fsync, give the mode, rename) and of `fileio.save_fleet_text` (read back, back up, write):
 the error must be a `PlannerError` that says what happened, the fleet file must be byte for byte
 the old one, no temporary file may be left, and saving again once the fault is gone must work.
 Real faults too where the system gives them to us (a path under a file, a vanished folder, sysfs
@@ -123,7 +123,7 @@ STEPS = [  # (step, how to inject it)
     ("flush", lambda mp, code, nth: fail_file_step(mp, "flush", code, nth)),
     ("close", lambda mp, code, nth: fail_file_step(mp, "close", code, nth)),
     ("fsync", lambda mp, code, nth: fail_call(mp, os, "fsync", code, nth)),
-    ("chmod", lambda mp, code, nth: fail_call(mp, os, "chmod", code, nth)),
+    ("chmod", lambda mp, code, nth: fail_call(mp, os, "fchmod", code, nth)),
     ("replace", lambda mp, code, nth: fail_call(mp, os, "replace", code, nth)),
 ]
 CODES = [errno.ENOSPC, errno.EIO, errno.EACCES, errno.EROFS, errno.EXDEV]
@@ -228,14 +228,7 @@ def test_a_failed_backup_keeps_the_previous_backup(fleet, monkeypatch):
 
 def test_reading_back_before_the_save_fails(fleet, monkeypatch):
     loaded = load_fleet(fleet)
-    real = Path.read_bytes
-
-    def read_bytes(self):
-        if self == fleet:
-            raise oserror(errno.EIO)
-        return real(self)
-
-    monkeypatch.setattr(Path, "read_bytes", read_bytes)
+    fail_call(monkeypatch, os, "read", errno.EIO)  # the first read is the read-back
     with pytest.raises(PlannerError) as caught:
         save_fleet_text(loaded, NEW_TEXT)
     monkeypatch.undo()

@@ -102,7 +102,7 @@ def run(args: argparse.Namespace) -> int:
     assert out is not None
     kept = ""
     if out.exists():
-        write_atomic(backup_path(out), out.read_bytes())
+        write_atomic(backup_path(out), out.read_bytes(), like=out, backup=True)
         kept = f" (the old file is kept as {backup_path(out)})"
     write_atomic(out, result.text.encode("utf-8"))
     loaded = load_fleet(out)  # the normal loader: what was written must be a valid fleet file

@@ -10,6 +10,7 @@ from planner import importer, inuse
 from planner.caution import caution_block
 from planner.cli.cmd_import import add_csv_options
 from planner.cli.common import load, say
+from planner.errors import PlannerError
 from planner.fileio import backup_path, read_csv, save_fleet_text
 
 EPILOG = """\
@@ -56,18 +57,39 @@ def run(args: argparse.Namespace) -> int:
         decoded.text, loaded.fleet, loaded.text, source=args.csv,
         column_map=importer.parse_map(args.map), date_order=args.date_order,
         today=dt.date.today(), decoded=decoded)
+    if result.added and not args.dry_run:
+        try:
+            save_fleet_text(loaded, result.text)
+        except PlannerError as err:
+            # stdout alone (a log, a script) must not read as if the readings were added.
+            n = len(result.added)
+            say(f"Nothing was saved by this run ({err.title}): the {n} reading"
+                f"{'s' * (n != 1)} below {'were' if n != 1 else 'was'} NOT added. Run the "
+                "command again (readings already in the file are skipped).")
+            say("\n".join(not_added(result.report)))
+            raise
     say("\n".join(result.report))
     if args.dry_run:
         say(f"\nDry run: {args.file} was not changed.")
     elif not result.added:
         say(f"\nNothing to add: {args.file} was not changed.")
     else:
-        save_fleet_text(loaded, result.text)
         say(f"\nSaved {args.file} with {len(result.added)} new reading"
-              f"{'s' * (len(result.added) != 1)} (the previous version is "
-              f"{backup_path(loaded.path)}).")
+            f"{'s' * (len(result.added) != 1)} (the previous version is "
+            f"{backup_path(loaded.path)}).")
         note_open_window(args.file, inuse.holder(loaded.path))
     return 0
+
+
+def not_added(report: tuple[str, ...] | list[str]) -> list[str]:
+    """The import report, its "added" words turned to "to add" (the save failed)."""
+    lines = list(report)
+    for k, line in enumerate(lines):
+        if line.startswith("Readings: "):
+            lines[k] = line.replace(" added,", " to add (not saved),", 1)
+        elif line.startswith("  added: "):
+            lines[k] = "  not added: " + line[len("  added: "):]
+    return lines
 
 
 def note_open_window(file: str, held: inuse.Holder | None) -> None:

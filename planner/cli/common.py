@@ -10,7 +10,7 @@ from collections.abc import Sequence
 from pathlib import Path
 
 from planner.errors import PlannerError
-from planner.fileio import LoadedFleet, load_fleet, write_atomic
+from planner.fileio import LoadedFleet, load_fleet, write_output
 from planner.safetext import shown
 
 EXIT_USER_ERROR = 2
@@ -72,7 +72,8 @@ def load(path: str) -> LoadedFleet:
 
 
 def emit(text: str, out: str | None, fleet_path: Path | None = None, what: str = "") -> None:
-    """Print `text`, or write it atomically to `out` and say where it went."""
+    """Print `text`, or write it to `out` and say where it went: a file is replaced
+    atomically, a stream, FIFO or device written into (`fileio.write_output`)."""
     if out is None or out == "-":
         sys.stdout.write(text)
         return
@@ -80,5 +81,5 @@ def emit(text: str, out: str | None, fleet_path: Path | None = None, what: str =
     if fleet_path is not None and target.resolve() == fleet_path.resolve():
         raise PlannerError(f"refusing to write over the fleet file {out}",
                            "Choose another output path with -o.")
-    write_atomic(target, text.encode("utf-8"))
+    write_output(target, text.encode("utf-8"))
     print(f"wrote {what + ' to ' if what else ''}{target}", file=sys.stderr)

@@ -8,6 +8,7 @@ from typing import TYPE_CHECKING
 from rich.text import Text
 
 from planner.errors import PlannerError
+from planner.fileio import backup_path
 from planner.tui.screens.dialogs import AskDialog
 from planner.tui.screens.form import FormScreen
 
@@ -40,7 +41,7 @@ class FileActions:
         self.refresh_views()
         self.keep_in_cache()  # the saved text's fleet: the next open need not parse it
         self.say(f"Saved {session.path} (the previous version is in "
-                 f"{session.path.name}.bak).")
+                 f"{backup_path(session.path).name}).")
         if then_quit:
             self.exit()
         return True
@@ -53,7 +54,8 @@ class FileActions:
                         f"{'stays' if len(session.history) == 1 else 'stay'} here until you "
                         "choose.\n\n", style="")
         question.append("Keep a copy writes your version beside it as "
-                        f"{session.path.stem}.mine{session.path.suffix}, to compare. "
+                        f"{session.path.stem}.mine{session.path.suffix} (numbered -2, -3, … when "
+                        "that name is taken: an earlier copy is never replaced), to compare. "
                         "Reload reads the file on disk and drops your changes.")
 
         def done(answer: str | None) -> None:

@@ -30,7 +30,8 @@ from planner.fileio import (
     parse_fleet_text,
     save_fleet_text,
     warnings_of,
-    write_atomic,
+    write_new,
+    write_output,
 )
 from planner.fleet import Fleet
 from planner.plan import Status, VehiclePlan
@@ -234,10 +235,11 @@ class Session:
         return job
 
     def save_copy(self) -> Path:
-        """Write the current text beside the file, for when the file itself cannot be saved."""
+        """Write the current text beside the file, for when the file itself cannot be saved:
+        `<stem>.mine<suffix>`, or `.mine-2`, `-3`, … when taken (never over an earlier copy,
+        never through a link), with the fleet file's owner, group and mode."""
         target = self.path.with_name(self.path.stem + ".mine" + self.path.suffix)
-        write_atomic(target, self.text.encode("utf-8"))
-        return target
+        return write_new(target, self.text.encode("utf-8"), like=self.path)
 
     # -- planning -----------------------------------------------------------------------------
     def assessment(self) -> FleetAssessment:
@@ -322,7 +324,7 @@ class Session:
         if path.resolve() == self.path.resolve():
             raise PlannerError(f"refusing to write over the fleet file {path}",
                                "Choose another file name for the export.")
-        write_atomic(path, self.export_text(records, fmt).encode("utf-8"))
+        write_output(path, self.export_text(records, fmt).encode("utf-8"))
         return path
 
 

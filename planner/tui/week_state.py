@@ -4,7 +4,7 @@ No Textual here. The plan is `planner.week.plan_week`'s and every move goes thro
 `planner.week.move`, so the engine's rules (bay hours, parts lead time, unavailable days,
 working days) are the only rules; a refusal is the engine's PlannerError, passed on as it is.
 The plan lives for this session only: nothing here writes the fleet file. Exports use the
-writers of `beltplan week --format …` (`planner.week_export`) and `fileio.write_atomic`.
+writers of `beltplan week --format …` (`planner.week_export`) and `fileio.write_output`.
 """
 
 from __future__ import annotations
@@ -15,7 +15,7 @@ from pathlib import Path
 
 from planner import week_export
 from planner.errors import PlannerError
-from planner.fileio import write_atomic
+from planner.fileio import write_output
 from planner.fleet import Fleet
 from planner.tui.session import Session
 from planner.week import DEFAULT_INCLUDE, WeekPlan, move, plan_week
@@ -182,5 +182,5 @@ class WeekState:
         if path.resolve() == self.session.path.resolve():
             raise PlannerError(f"refusing to write over the fleet file {path}",
                                "Choose another file name for the export.")
-        write_atomic(path, self.export_text(kind, stamp).encode("utf-8"))
+        write_output(path, self.export_text(kind, stamp).encode("utf-8"))
         return path
