@@ -97,9 +97,11 @@ def conditional_failure(t_now: float, t_later: float, beta: float, eta: float) -
         y = beta * math.log1p((t_later - t_now) / t_now)
         if y == 0:
             return 0.0
-        log_dh = (beta * (math.log(t_now) - math.log(eta))
-                  + (y + math.log(-math.expm1(-y)) if y > 1 else math.log(math.expm1(y))))
-        dh = math.inf if log_dh > _LOG_HAZARD_NIL else math.exp(log_dh)
+        try:
+            dh = _hazard(t_now, beta, eta) * math.expm1(y)
+        except OverflowError:
+            log_dh = beta * (math.log(t_now) - math.log(eta)) + y + math.log(-math.expm1(-y))
+            dh = math.inf if log_dh > _LOG_HAZARD_NIL else math.exp(log_dh)
     return min(1.0, max(0.0, -math.expm1(-dh)))
 
 
