@@ -152,3 +152,34 @@ def test_beltplan_risk_with_a_steep_fleet_fit_exits_0(tmp_path, capsys):
     assert model.beta > 1000  # the fit is in force, and steep
     assert main(["risk", str(path), "--as-of", "2026-12-07"]) == 0
     assert "Traceback" not in capsys.readouterr().err
+
+
+# -- a bay day too short for any job ----------------------------------------------------------
+
+def _calendar(hours_per_day: float):
+    from planner.schedule import WorkshopCalendar
+    return WorkshopCalendar(bays=2, hours_per_day=hours_per_day, weekdays=frozenset(range(5)))
+
+
+@pytest.mark.parametrize("hours_per_day", [1e-300, 1e-6, 0.01])
+def test_a_job_longer_than_the_windows_working_days_is_unplaced_with_a_reason(hours_per_day):
+    from datetime import date
+
+    from planner.schedule import TOO_LONG, JobRequest, schedule_jobs
+    # 3 h at 0.01 h a day is 300 working days; the window of 14 days from Monday 2026-12-07
+    # has 10 (two weeks of Monday to Friday). Smaller days need ever more: never built.
+    jobs = [JobRequest("V1", 3.0, 0, needs_parts=False)]
+    plan = schedule_jobs(jobs, _calendar(hours_per_day), date(2026, 12, 7), 14, date(2026, 12, 7))
+    assert plan.placements == ()
+    assert [(u.key, u.reason) for u in plan.unplaced] == [("V1", TOO_LONG)]
+
+
+def test_a_job_that_just_fits_the_window_is_still_placed():
+    from datetime import date
+
+    from planner.schedule import JobRequest, schedule_jobs
+    # 10 working days of 0.5 h hold 5 h exactly: days 2026-12-07 to 2026-12-18
+    jobs = [JobRequest("V1", 5.0, 0, needs_parts=False)]
+    plan = schedule_jobs(jobs, _calendar(0.5), date(2026, 12, 7), 14, date(2026, 12, 7))
+    [p] = plan.placements
+    assert (p.days[0], p.days[-1], len(p.days)) == (date(2026, 12, 7), date(2026, 12, 18), 10)
