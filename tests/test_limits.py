@@ -183,3 +183,40 @@ def test_a_job_that_just_fits_the_window_is_still_placed():
     plan = schedule_jobs(jobs, _calendar(0.5), date(2026, 12, 7), 14, date(2026, 12, 7))
     [p] = plan.placements
     assert (p.days[0], p.days[-1], len(p.days)) == (date(2026, 12, 7), date(2026, 12, 18), 10)
+
+
+# -- dates outside the file's years -----------------------------------------------------------
+
+@pytest.mark.parametrize("args", [
+    ["list", "--as-of", "9999-12-31"],
+    ["week", "--as-of", "9999-12-31"],
+    ["risk", "--as-of", "2101-01-01"],
+    ["list", "--as-of", "1949-12-31"],
+    ["week", "--as-of", "2026-12-07", "--start", "9999-12-27"],
+])
+def test_a_date_outside_1950_2100_is_exit_2_with_the_range(args):
+    import subprocess
+    import sys
+
+    from tests.conftest import COURIER, ROOT
+    command, *rest = args
+    run = subprocess.run([sys.executable, "-m", "planner", command, str(COURIER), *rest],
+                         capture_output=True, text=True, cwd=ROOT)
+    assert run.returncode == 2, run.stderr
+    assert "Traceback" not in run.stderr
+    assert "1950-01-01 to 2100-12-31" in run.stderr
+
+
+@pytest.mark.parametrize("day", ["1950-01-01", "2100-12-31"])
+def test_the_ends_of_the_range_still_plan(day, capsys):
+    from tests.conftest import COURIER
+    for command in ("list", "risk", "week"):
+        assert main([command, str(COURIER), "--as-of", day]) == 0, command
+    capsys.readouterr()
+
+
+@pytest.mark.parametrize("text", ["2101-01-01", "9999-12-31", "1949-12-31"])
+def test_a_form_date_outside_the_files_years_is_refused(text):
+    from planner.tui.forms import FormField, convert
+    with pytest.raises(ValueError, match="1950-01-01 to 2100-12-31"):
+        convert(FormField("as_of", "plan as of", "date", required=True), text)
