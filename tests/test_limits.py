@@ -220,3 +220,25 @@ def test_a_form_date_outside_the_files_years_is_refused(text):
     from planner.tui.forms import FormField, convert
     with pytest.raises(ValueError, match="1950-01-01 to 2100-12-31"):
         convert(FormField("as_of", "plan as of", "date", required=True), text)
+
+
+def test_the_ui_date_dialog_refuses_a_year_the_file_refuses():
+    from textual.widgets import Input
+
+    from tests.test_tui_support import SMALL, make_app, opened, screen_name, sync, text_of, until
+
+    @sync
+    async def run() -> None:
+        app = make_app()
+        async with app.run_test(size=SMALL) as pilot:
+            await opened(pilot)
+            await pilot.press("d")
+            await until(pilot, lambda: screen_name(app) == "FormScreen")
+            app.screen.query_one("#f-as_of", Input).value = "9999-12-31"
+            await pilot.press("enter")
+            await pilot.pause()
+            assert screen_name(app) == "FormScreen"  # not applied
+            assert "1950-01-01 to 2100-12-31" in text_of(app.screen.query_one("#problems"))
+            assert app.session.as_of == AS_OF
+
+    run()
