@@ -6,6 +6,8 @@ from __future__ import annotations
 import math
 
 import pytest
+from hypothesis import given, settings
+from hypothesis import strategies as st
 from scipy import integrate, stats
 
 from planner.cli import main
@@ -14,6 +16,7 @@ from planner.reliability import (
     _life_integral,
     age_replacement_cost_rate,
     conditional_failure,
+    eta_from_share,
     fit_weibull_censored,
     optimal_replacement,
 )
@@ -242,3 +245,31 @@ def test_the_ui_date_dialog_refuses_a_year_the_file_refuses():
             assert app.session.as_of == AS_OF
 
     run()
+
+
+# -- property: any law in the settings' ranges, or a fit however steep, gives finite figures --
+
+SHAPES = st.floats(0.5, 20.0)
+SHARES = st.floats(0.0001, 0.5)
+FIT_SHAPES = st.floats(0.5, 1e5)  # a fit is bounded by no range (its finder stops at 1e7)
+AGES = st.floats(0.0, 50.0)  # life used, in intervals
+
+
+@settings(max_examples=200, deadline=None)
+@given(SHAPES, SHARES, AGES, st.floats(0.0, 10.0))
+def test_probabilities_in_the_ranges_are_finite_and_in_0_1(beta, share, u_now, more):
+    eta = eta_from_share(share, beta)
+    assert math.isfinite(eta) and eta > 0
+    p = conditional_failure(u_now, u_now + more, beta, eta)
+    assert 0.0 <= p <= 1.0
+
+
+@settings(max_examples=200, deadline=None)
+@given(FIT_SHAPES, st.floats(0.05, 5.0), st.floats(0.01, 3.0), AGES, st.floats(0.0, 10.0))
+def test_a_steep_law_gives_a_finite_integral_cost_and_probability(beta, eta, u, u_now, more):
+    life = _life_integral(u, beta, eta)
+    # the integral of R over [0, u] lies between u R(u) and u (R falls from 1)
+    assert 0.0 < life <= u * (1 + 1e-12)
+    rate = age_replacement_cost_rate(u, beta, eta, 300.0, 3300.0)
+    assert math.isfinite(rate) and rate > 0
+    assert 0.0 <= conditional_failure(u_now, u_now + more, beta, eta) <= 1.0
