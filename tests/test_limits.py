@@ -273,3 +273,34 @@ def test_a_steep_law_gives_a_finite_integral_cost_and_probability(beta, eta, u, 
     rate = age_replacement_cost_rate(u, beta, eta, 300.0, 3300.0)
     assert math.isfinite(rate) and rate > 0
     assert 0.0 <= conditional_failure(u_now, u_now + more, beta, eta) <= 1.0
+
+
+def test_the_ui_at_the_edges_of_the_ranges_opens_the_week_and_about(tmp_path):
+    from tests.test_tui_support import SMALL, make_app, opened, screen_name, sync, until
+
+    # Shape 20, half failed by the interval, a half-hour bay day: the 3 h job of the header's
+    # profile needs 6 working days, more than the week's 5, so it is listed as too long.
+    header = HEADER + ("\n[risk]\nshape = 20.0\nshare_failed_at_interval = 0.5\n"
+                       "\n[workshop]\nhours_per_day = 0.5\n")
+    path = tmp_path / "fleet.toml"
+    body = VEHICLE.replace("2024-01-01", "2021-01-01")  # age limit passed: overdue
+    path.write_text(fleet_text(body, header), encoding="utf-8")
+
+    @sync
+    async def run() -> None:
+        app = make_app(path)
+        async with app.run_test(size=SMALL) as pilot:
+            await opened(pilot)
+            assert screen_name(app) == "MainScreen"
+            await pilot.press("w")
+            await until(pilot, lambda: screen_name(app) == "WeekScreen", what="week view")
+            week = app.week_state().plan()
+            assert [(u.job.vehicle_id, u.reason) for u in week.unplaced] == [
+                ("V1", "longer than the window's working days")]
+            await pilot.press("escape")
+            await until(pilot, lambda: screen_name(app) == "MainScreen", what="back")
+            await pilot.press("i")
+            await until(pilot, lambda: screen_name(app) == "AboutScreen", what="about")
+        assert app.return_code in (None, 0)
+
+    run()
