@@ -34,7 +34,7 @@ except ImportError:  # Windows: saves still check and replace atomically, withou
 from planner.errors import Path as DataPath
 from planner.errors import PlannerError, Problem
 from planner.fleet import Fleet
-from planner.locate import line_of, locate
+from planner.locate import MAX_KEY_NAMES, line_of, locate, too_deep_key
 from planner.validate import build_fleet, fleet_warnings
 
 if TYPE_CHECKING:
@@ -195,6 +195,15 @@ def parse_fleet_text(text: str, name: str) -> Fleet:
 
 
 def _parse(text: str, name: str) -> Fleet:
+    deep = too_deep_key(text)
+    if deep is not None:
+        raise PlannerError(
+            f"{name} has a key nested too deeply to read",
+            "Nothing was planned.",
+            [Problem(f"a key or table header of more than {MAX_KEY_NAMES} dotted names",
+                     file=name, line=text.count("\n", 0, deep) + 1,
+                     hint="a fleet file's keys are at most three names deep, e.g. "
+                     "[[vehicles.belt_jobs]]: look for a run of names joined by dots")])
     try:
         data = tomllib.loads(text)
     except tomllib.TOMLDecodeError as exc:

@@ -36,6 +36,15 @@ MAX_INTERVAL_MONTHS = 360
 MAX_MONEY = 10_000_000.0
 MAX_HOURS = 200.0
 
+# Ranges that keep the risk numerics finite (the field descriptions say why).
+MIN_SHAPE = 0.5
+MAX_SHAPE = 20.0
+MIN_SHARE = 0.0001
+MAX_SHARE = 0.5
+# The shortest working day a bay can have: half an hour; a job of many hours then spans a known
+# number of days, never millions of them.
+MIN_HOURS_PER_DAY = 0.5
+
 
 class Drive(StrEnum):
     """How the crankshaft drives the camshafts."""
@@ -304,14 +313,20 @@ class FleetSettings(_Model):
 class RiskSettings(_Model):
     """The [risk] table: assumptions of the failure-risk model (shown wherever it is used)."""
 
-    shape: Annotated[float, Strict(), Field(gt=0, le=20)] = Field(
-        default=3.5, description="Weibull shape beta of drive life (default 3.5, from memory)."
+    shape: Annotated[float, Strict(), Field(ge=MIN_SHAPE, le=MAX_SHAPE)] = Field(
+        default=3.5, description="Weibull shape beta of drive life (default 3.5, from memory). "
+        f"From {MIN_SHAPE} to {MAX_SHAPE:g}: below, the scale that puts the share failed at the "
+        "interval grows past any number a computer holds (at 0.003 it is 10^666 intervals); "
+        "above, every belt would fail at one age, which no wear-out data shows."
     )
-    share_failed_at_interval: Annotated[float, Strict(), Field(gt=0, lt=1)] = Field(
-        default=0.01,
-        description="Share of drives expected to have failed by the maker's interval "
-        "(default 0.01, from memory).",
-    )
+    share_failed_at_interval: Annotated[float, Strict(), Field(ge=MIN_SHARE, le=MAX_SHARE)] = (
+        Field(
+            default=0.01,
+            description="Share of drives expected to have failed by the maker's interval "
+            f"(default 0.01, from memory). From {MIN_SHARE:g} to {MAX_SHARE:g}: a maker sets "
+            "its interval well before half the belts fail, and below one in ten thousand the "
+            "figure is beyond what any record could show.",
+        ))
     horizon_days: Annotated[int, Strict(), Field(ge=1, le=3650)] = Field(
         default=90, description="Look-ahead for the failure probability, in days."
     )
@@ -330,8 +345,10 @@ class Workshop(_Model):
 
     bays: Annotated[int, Strict(), Field(ge=1, le=100)] = Field(default=1,
                                                                 description="Number of bays.")
-    hours_per_day: Annotated[float, Strict(), Field(gt=0, le=24)] = Field(
-        default=8.0, description="Working hours per bay per day (jobs start from 08:00)."
+    hours_per_day: Annotated[float, Strict(), Field(ge=MIN_HOURS_PER_DAY, le=24)] = Field(
+        default=8.0, description="Working hours per bay per day (jobs start from 08:00). "
+        f"From {MIN_HOURS_PER_DAY} to 24: a shorter day is no working day, and would split one "
+        "job over thousands of days."
     )
     weekdays: list[Weekday] = Field(
         default_factory=lambda: ["mon", "tue", "wed", "thu", "fri"],

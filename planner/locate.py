@@ -8,11 +8,25 @@ follow ends the scan, and `line_of` then falls back to the nearest located ances
 
 from __future__ import annotations
 
+import bisect
+import re
 import tomllib
 
 from planner.errors import Path
 
 _BARE = set("ABCDEFGHIJKLMNOPQRSTUVWXYZabcdefghijklmnopqrstuvwxyz0123456789_-")
+# Runs of text the scanner passes over in one step (C speed), never character by character: a
+# 50 MB string or comment costs one regular-expression match.
+_BARE_RUN = re.compile(r"[A-Za-z0-9_-]+")
+_BASIC_BODY = re.compile(r'[^"\\\n]*')  # up to a closing quote, an escape or a line end
+_LITERAL_BODY = re.compile(r"[^'\n]*")
+_SCALAR = re.compile(r"[^,\]}#\n]*")
+_SPACE = re.compile(r"[ \t\r]*")
+_SPACE_LINES = re.compile(r"[ \t\r\n]*")
+# Paths are kept this many names deep at most: the fleet file's deepest is 5
+# (vehicles, 3, readings, 1, date). Deeper keys are errors whatever they hold, and located by
+# their first names; keeping every prefix of a key n names deep would cost n^2 time and memory.
+MAX_DEPTH = 32
 
 
 class _Stop(Exception):
@@ -26,20 +40,11 @@ class _Scanner:
         self.n = len(text)
         self.found: dict[Path, tuple[int, int]] = {}
         self.tables_seen: dict[Path, int] = {}  # array-of-tables path -> element count
-        self.line_starts = [0]
-        for k, ch in enumerate(text):
-            if ch == "\n":
-                self.line_starts.append(k + 1)
+        self.line_starts = [0] + [m.end() for m in re.finditer("\n", text)]
 
     # -- positions --------------------------------------------------------------------------
     def pos(self, i: int) -> tuple[int, int]:
-        lo, hi = 0, len(self.line_starts) - 1
-        while lo < hi:
-            mid = (lo + hi + 1) // 2
-            if self.line_starts[mid] <= i:
-                lo = mid
-            else:
-                hi = mid - 1
+        lo = bisect.bisect_right(self.line_starts, i) - 1
         return lo + 1, i - self.line_starts[lo] + 1
 
     def mark(self, path: Path, i: int) -> None:
@@ -51,13 +56,12 @@ class _Scanner:
         return self.s[j] if j < self.n else ""
 
     def skip_space(self, newlines: bool) -> None:
+        space = _SPACE_LINES if newlines else _SPACE
         while self.i < self.n:
-            ch = self.s[self.i]
-            if ch in " \t\r" or (newlines and ch == "\n"):
-                self.i += 1
-            elif ch == "#":
-                while self.i < self.n and self.s[self.i] != "\n":
-                    self.i += 1
+            self.i = space.match(self.s, self.i).end()
+            if self.i < self.n and self.s[self.i] == "#":
+                end = self.s.find("\n", self.i)
+                self.i = self.n if end < 0 else end
             else:
                 return
 
@@ -75,11 +79,12 @@ class _Scanner:
                 self.i = end + 3
                 return s[i + 3 : end]
         quote = s[i]
-        j = i + 1
-        while j < self.n and s[j] != quote:
-            if s[j] == "\n":
-                raise _Stop
-            j += 2 if quote == '"' and s[j] == "\\" else 1
+        body = _BASIC_BODY if quote == '"' else _LITERAL_BODY
+        j = body.match(s, i + 1).end()
+        while quote == '"' and j < self.n and s[j] == "\\":  # an escape: past it, go on
+            j = body.match(s, j + 2).end()
+        if j >= self.n or s[j] != quote:
+            raise _Stop  # a line end inside the string
         self.i = j + 1
         body = s[i + 1 : j]
         if quote == '"' and "\\" in body:  # a key like "a\"b": the data path holds it unescaped
@@ -98,8 +103,7 @@ class _Scanner:
                 parts.append(self.string())
             elif ch in _BARE:
                 j = self.i
-                while self.i < self.n and self.s[self.i] in _BARE:
-                    self.i += 1
+                self.i = _BARE_RUN.match(self.s, j).end()
                 parts.append(self.s[j : self.i])
             else:
                 raise _Stop
@@ -138,8 +142,7 @@ class _Scanner:
         elif ch in ('"', "'"):
             self.string()
         elif ch:
-            while self.i < self.n and self.s[self.i] not in ",]}#\n":
-                self.i += 1
+            self.i = _SCALAR.match(self.s, self.i).end()
         else:
             raise _Stop
 
@@ -150,7 +153,7 @@ class _Scanner:
             raise _Stop
         self.i += 1
         path = base
-        for k in keys:
+        for k in keys[: max(MAX_DEPTH - len(base), 0)]:
             path = path + (k,)
             self.mark(path, start)
         self.skip_space(newlines=False)
@@ -160,7 +163,7 @@ class _Scanner:
         start = self.i
         array = self.s.startswith("[[", self.i)
         self.i += 2 if array else 1
-        names = self.key()
+        names = self.key()[:MAX_DEPTH]
         self.i += 2 if array else 1
         path: Path = ()
         for k, name in enumerate(names):
@@ -195,6 +198,26 @@ def _escaped(s: str, i: int) -> bool:
     return backslashes % 2 == 1
 
 
+# A key or table header of more names than this is refused before `tomllib` reads the text:
+# tomllib's time and memory grow with the square of a key's depth (a header 40,000 names deep,
+# 80 KB, would take minutes and gigabytes). A name and its dot take at least two characters, so
+# only lines at least that long are searched, and only where a key can start.
+MAX_KEY_NAMES = 200
+_KEY_NAME = r"""(?:[A-Za-z0-9_-]++|"(?:[^"\\\n]|\\.)*+"|'[^'\n]*+')"""
+_LONG_LINE = re.compile(r"^[^\n]{" + str(2 * MAX_KEY_NAMES - 1) + ",}", re.MULTILINE)
+_DEEP_KEY = re.compile(r"(?:^[ \t]*+\[{0,2}|[{,])[ \t]*+(?:" + _KEY_NAME
+                       + r"[ \t]*+\.[ \t]*+){" + str(MAX_KEY_NAMES) + "}", re.MULTILINE)
+
+
+def too_deep_key(text: str) -> int | None:
+    """Where a key of more than MAX_KEY_NAMES dotted names starts, or None; linear time."""
+    for line in _LONG_LINE.finditer(text):
+        hit = _DEEP_KEY.search(text, line.start(), line.end())
+        if hit:
+            return hit.start()
+    return None
+
+
 def locate(text: str) -> dict[Path, tuple[int, int]]:
     """Map every data path of a TOML document to its (line, column), 1-based."""
     scanner = _Scanner(text)
@@ -207,7 +230,7 @@ def locate(text: str) -> dict[Path, tuple[int, int]]:
 
 def line_of(found: dict[Path, tuple[int, int]], path: Path) -> tuple[int, int] | None:
     """The position of `path`, or of its nearest located ancestor."""
-    for k in range(len(path), 0, -1):
+    for k in range(min(len(path), MAX_DEPTH), 0, -1):
         hit = found.get(tuple(path[:k]))
         if hit:
             return hit

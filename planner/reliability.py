@@ -13,6 +13,8 @@ from collections.abc import Callable, Sequence
 from dataclasses import dataclass
 
 _EPS = 2.220446049250313e-16
+# exp(-exp(7)) < 1e-476 is zero in floating point: a log-hazard above this means R = 0.
+_LOG_HAZARD_NIL = 7.0
 
 
 @dataclass(frozen=True)
@@ -90,8 +92,16 @@ def conditional_failure(t_now: float, t_later: float, beta: float, eta: float) -
     elif t_later > 2 * t_now:  # H(t_now) <= H(t_later)/2^beta: the plain difference is exact enough
         dh = _hazard(t_later, beta, eta) - _hazard(t_now, beta, eta)
     else:
-        # H(t1)*((t2/t1)^b - 1) via expm1/log1p: no cancellation between two huge hazards.
-        dh = _hazard(t_now, beta, eta) * math.expm1(beta * math.log1p((t_later - t_now) / t_now))
+        # H(t1)*((t2/t1)^b - 1) via expm1/log1p: no cancellation between two huge hazards; in
+        # logs, since a steep shape (a fit to failures close together) overflows either factor.
+        y = beta * math.log1p((t_later - t_now) / t_now)
+        if y == 0:
+            return 0.0
+        try:
+            dh = _hazard(t_now, beta, eta) * math.expm1(y)
+        except OverflowError:
+            log_dh = beta * (math.log(t_now) - math.log(eta)) + y + math.log(-math.expm1(-y))
+            dh = math.inf if log_dh > _LOG_HAZARD_NIL else math.exp(log_dh)
     return min(1.0, max(0.0, -math.expm1(-dh)))
 
 
@@ -251,10 +261,17 @@ def _life_integral(u: float, beta: float, eta: float) -> float:
     log_us = math.log(us)
 
     def f(z: float) -> float:
-        return z ** (m - 1) * math.exp(-math.exp(beta * (log_us + m * math.log(z))))
+        log_h = beta * (log_us + m * math.log(z))
+        # exp(-exp(log_h)) is below the smallest float long before exp(log_h) overflows (a
+        # steep fitted shape puts log_h in the thousands just past eta)
+        return 0.0 if log_h > _LOG_HAZARD_NIL else z ** (m - 1) * math.exp(-math.exp(log_h))
 
-    # Split where x = eta: R falls from ~1 to ~0 around there, sharply when beta is large.
-    breaks = [0.0, us ** (-1.0 / m), 1.0] if us > 1 else [0.0, 1.0]
+    # Split where x = eta: R falls from ~1 to ~0 around there, sharply when beta is large. With
+    # a steep shape the fall takes ~1/beta of eta, which a 15-point rule over [0, eta] would
+    # step over and call converged: split also where the log-hazard is each of `levels`.
+    levels = (-30.0, -8.0, -3.0, -1.0, 0.0, 1.0, 2.0, 4.0) if beta > 8 else (0.0,)
+    inner = sorted({z for c in levels if 0 < (z := math.exp((c / beta - log_us) / m)) < 1})
+    breaks = [0.0, *inner, 1.0]
     return eta * us * m * _integrate(f, breaks)
 
 

@@ -17,6 +17,8 @@ of workshop planning [trade, no source]:
   starting that day follow in booking order. `start_hour` is the hours booked before the job on
   its first day, so segments never overlap and a calendar event starts at opening + start_hour.
 - A job that fits nowhere is never dropped: it is listed as unplaced with the most specific reason.
+  A job needing more working days than the window has is unplaced at once (`TOO_LONG`), so a
+  tiny bay day can never make the scheduler build or try millions of days.
 """
 
 from __future__ import annotations
@@ -36,8 +38,12 @@ WEEKDAYS = ("mon", "tue", "wed", "thu", "fri", "sat", "sun")
 NO_CAPACITY = "no capacity in the window"
 UNAVAILABLE = "vehicle unavailable in the window"
 PARTS_LATE = "parts not in time"
+TOO_LONG = "longer than the window's working days"
 
 BayDay = tuple[date, int]
+# No window reaches this many working days (the week plan's is a few weeks): a job needing more
+# is unplaced before its day-by-day split is built.
+MAX_SPAN_DAYS = 100_000
 
 
 class ScheduleError(ValueError):
@@ -111,7 +117,7 @@ class Placement:
 @dataclass(frozen=True)
 class Unplaced:
     key: str
-    reason: str  # NO_CAPACITY, UNAVAILABLE or PARTS_LATE
+    reason: str  # NO_CAPACITY, UNAVAILABLE, PARTS_LATE or TOO_LONG
 
 
 @dataclass(frozen=True)
@@ -137,9 +143,21 @@ class SchedulePlan:
         return next((p for p in self.placements if p.key == key), None)
 
 
+def days_needed(hours: float, hours_per_day: float) -> float:
+    """Working days a job spans (an int, or inf for more days than any window holds)."""
+    ratio = hours / hours_per_day
+    if not ratio < MAX_SPAN_DAYS:  # also inf and nan: a tiny bay day never builds a huge split
+        return math.inf
+    return max(1, math.ceil(ratio - EPS))  # 16 h of 8 h days is 2 days, not 3
+
+
 def split_hours(hours: float, hours_per_day: float) -> tuple[float, ...]:
     """Hours on each day of a job: full bay days, the remainder last."""
-    n = max(1, math.ceil(hours / hours_per_day - EPS))  # 16 h of 8 h days is 2 days, not 3
+    n = days_needed(hours, hours_per_day)
+    if n == math.inf:
+        raise ScheduleError(f"a job of {hours:g} h at {hours_per_day:g} h a day spans more than "
+                            f"{MAX_SPAN_DAYS:,} days")
+    n = int(n)
     return (hours_per_day,) * (n - 1) + (hours - hours_per_day * (n - 1),)
 
 
@@ -157,9 +175,14 @@ def _check(
     ready: date | None,
 ) -> str | None:
     """Why `job` cannot start on working day `wdays[i]` in `bay`, or None when it fits."""
-    day, split = wdays[i], split_hours(job.hours, cal.hours_per_day)
+    day = wdays[i]
     if ready is not None and day < ready:
         return f"the parts arrive on {ready}, after {day}"
+    n = days_needed(job.hours, cal.hours_per_day)
+    if n > len(wdays) - i:
+        return (f"the job needs {n:g} working days from {day}; the window ends first"
+                if n < math.inf else f"the job needs more than {MAX_SPAN_DAYS:,} working days")
+    split = split_hours(job.hours, cal.hours_per_day)
     span = wdays[i : i + len(split)]
     if len(span) < len(split):
         return f"the job needs {len(split)} working days from {day}; the window ends first"
@@ -179,7 +202,10 @@ def _unplaced_reason(
     job: JobRequest, cal: WorkshopCalendar, wdays: Sequence[date], ready: date | None
 ) -> str:
     """The most specific reason a job fits nowhere: parts, then the vehicle, else capacity."""
-    n = len(split_hours(job.hours, cal.hours_per_day))
+    n = days_needed(job.hours, cal.hours_per_day)
+    if n > len(wdays):
+        return TOO_LONG if wdays else NO_CAPACITY
+    n = int(n)
     starts = range(len(wdays) - n + 1)
     if not starts:  # no working days, or fewer than the job needs
         return NO_CAPACITY
@@ -262,6 +288,9 @@ def schedule_jobs(
     bays = range(1, calendar.bays + 1)
     for job in sorted(jobs, key=lambda j: j.priority):  # stable: ties keep the input order
         ready = calendar.parts_ready(job, order_date)
+        if days_needed(job.hours, calendar.hours_per_day) > len(wdays):
+            unplaced.append(Unplaced(job.key, TOO_LONG if wdays else NO_CAPACITY))
+            continue
         slot = next(
             (
                 (i, b)

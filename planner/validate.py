@@ -176,7 +176,9 @@ def _validated(model: type[Any], raw: dict[str, Any], prefix: Path,
         _type_problems(raw, ("table", model), prefix, vehicle, problems)
         typed = {p.path for p in problems}
         for p in _from_pydantic(exc, prefix, vehicle):
-            if not any(p.path[: len(t)] == t for t in typed):  # one report per bad value
+            # One report per bad value: none under a path already reported as a wrong type
+            # (each prefix looked up in the set: linear in the problems, not their square).
+            if not any(p.path[:k] in typed for k in range(len(prefix), len(p.path) + 1)):
                 problems.append(p)
         return None, problems
 

@@ -54,6 +54,7 @@ from planner.risk import (
 )
 from planner.schedule import (
     PARTS_LATE,
+    TOO_LONG,
     UNAVAILABLE,
     JobRequest,
     ScheduleError,
@@ -207,7 +208,7 @@ class UnplacedJob:
     """A candidate the week has no place for, and why."""
 
     job: WeekJob
-    reason: str  # schedule.NO_CAPACITY, UNAVAILABLE, PARTS_LATE, or NO_LABOUR_HOURS
+    reason: str  # schedule.NO_CAPACITY, UNAVAILABLE, PARTS_LATE, TOO_LONG, or NO_LABOUR_HOURS
     detail: str  # the particulars, in words
 
 
@@ -590,6 +591,10 @@ def _unplaced(ctx: _Context, schedule: SchedulePlan) -> tuple[UnplacedJob, ...]:
             ready = ctx.calendar.parts_ready(ctx.request(job.vehicle_id), ctx.as_of)
             detail = (f"parts ordered on {ctx.as_of} arrive on {ready}, too late for a day "
                       "the vehicle can come in this window")
+        elif reason == TOO_LONG:
+            detail = (f"{job.hours:g} h needed at {ctx.calendar.hours_per_day:g} h a bay day: "
+                      f"more than the {len(wdays)} working days between {ctx.start} and "
+                      f"{ctx.end}")
         else:
             detail = (f"{job.hours:g} h needed; no bay has room for it between {ctx.start} "
                       f"and {ctx.end}")

@@ -12,7 +12,7 @@ ENGINE = ["planner.fleet", "planner.validate", "planner.plan", "planner.risk",
           "planner.errors", "planner.units", "planner.week", "planner.week_export",
           "planner.importer", "planner.edit", "planner.formats", "planner.caution"]
 FORBIDDEN = ["textual", "planner.tui", "planner.cli", "planner.fileio", "planner.inuse",
-             "planner.fleetcache", "planner.reparse", "scipy", "numpy"]
+             "planner.fleetcache", "planner.reparse", "planner.recovery", "scipy", "numpy"]
 
 
 @pytest.mark.parametrize("module", ENGINE)

@@ -17,6 +17,7 @@ from planner.fleet import Workshop
 from planner.schedule import (
     NO_CAPACITY,
     PARTS_LATE,
+    TOO_LONG,
     UNAVAILABLE,
     JobRequest,
     Placement,
@@ -167,7 +168,7 @@ def test_unplaced_reasons():
     # A-E 8 h each, no parts: fill Mon..Fri. F 1 h no parts: no room -> capacity.
     # G away all week -> unavailable. H parts on hand Mon + 10 -> parts.
     # I away Wed-Fri, needs parts (Wed): the van could come only before the parts -> parts.
-    # J 48 h = 6 days, window has 5 working days -> capacity.
+    # J 48 h = 6 days, window has 5 working days -> too long (no window day could start it).
     jobs = [JobRequest(k, 8, n, needs_parts=False) for n, k in enumerate("ABCDE")] + [
         JobRequest("F", 1, 5, needs_parts=False),
         JobRequest("G", 1, 6, unavailable=((MON - timedelta(3), FRI),), needs_parts=False),
@@ -180,7 +181,7 @@ def test_unplaced_reasons():
         Unplaced("F", NO_CAPACITY),
         Unplaced("G", UNAVAILABLE),
         Unplaced("I", PARTS_LATE),
-        Unplaced("J", NO_CAPACITY),
+        Unplaced("J", TOO_LONG),
     )
     late = schedule_jobs([JobRequest("H", 1, 0)], cal(lead=10), MON, 5, MON)
     assert late.unplaced == (Unplaced("H", PARTS_LATE),)
@@ -401,7 +402,8 @@ def check_plan(plan: SchedulePlan, jobs, c, start, days, order_date, *, greedy=T
     # Every job exactly once, placed or unplaced with a known reason.
     keys = [p.key for p in plan.placements] + [u.key for u in plan.unplaced]
     assert sorted(keys) == sorted(by_key)
-    assert all(u.reason in (NO_CAPACITY, UNAVAILABLE, PARTS_LATE) for u in plan.unplaced)
+    assert all(u.reason in (NO_CAPACITY, UNAVAILABLE, PARTS_LATE, TOO_LONG)
+               for u in plan.unplaced)
     # Working days: listed weekdays, not closed, inside the window.
     end = start + timedelta(days)
     assert all(

@@ -90,5 +90,12 @@ def run(args: argparse.Namespace) -> int:
 def run_ui(path: Path, as_of: dt.date) -> int:
     from planner.tui import create_app
 
-    create_app(path, as_of).run()
-    return 0
+    app = create_app(path, as_of)
+    app.run()
+    if app.recovered_to is not None:
+        print(f"beltplan: stopped by a bug; your unsaved edits are in {app.recovered_to} "
+              f"(copy what you need into {path}).", file=sys.stderr)
+    elif app.recovery_failed:
+        print(f"beltplan: stopped by a bug, and the unsaved edits could not be written beside "
+              f"{path}: {app.recovery_failed}", file=sys.stderr)
+    return app.return_code or 0

@@ -9,6 +9,7 @@ import sys
 from collections.abc import Sequence
 from pathlib import Path
 
+from planner.dates import parse_day
 from planner.errors import PlannerError
 from planner.fileio import LoadedFleet, load_fleet, write_output
 from planner.safetext import shown
@@ -34,13 +35,11 @@ def say(text: str = "", file: object = None) -> None:
 
 
 def iso_date(text: str) -> dt.date:
-    """argparse type for ISO 8601 calendar dates."""
+    """argparse type for ISO 8601 calendar dates, inside the fleet file's years."""
     try:
-        return dt.date.fromisoformat(text)
-    except ValueError:
-        raise argparse.ArgumentTypeError(
-            f"{text!r} is not a date: write it as YYYY-MM-DD, e.g. 2026-12-07"
-        ) from None
+        return parse_day(text)
+    except ValueError as exc:
+        raise argparse.ArgumentTypeError(str(exc)) from None
 
 
 def add_as_of(parser: argparse.ArgumentParser) -> None:

@@ -17,6 +17,8 @@ from textual.app import App
 from textual.screen import Screen
 
 from planner.errors import PlannerError
+from planner.recovery import write_recovery
+from planner.tui import clock
 from planner.tui.actions import BY_ID, bindings, first_key, scope_of
 from planner.tui.app_edit import EditActions
 from planner.tui.app_file import FileActions
@@ -62,6 +64,25 @@ class BeltplanApp(EditActions, FileActions, ImportActions, InUseActions, WeekAct
         self.reading = False  # the file is being read in a worker
         self.planning = False  # the current text is being planned in a worker
         self._rows: TableRows | None = None  # the fleet table's cells for the latest plan
+        self.recovered_to: Path | None = None  # where a bug's exit left the unsaved text
+        self.recovery_failed = ""  # why it could not be written there
+
+    # -- a bug ----------------------------------------------------------------------------
+    def _handle_exception(self, error: Exception) -> None:
+        """An exception no view handled (a bug): Textual stops the app with return code 1.
+
+        Before it does, unsaved edits go to a recovery file beside the fleet file
+        (`planner.recovery`); the command line says where once the terminal is back.
+        """
+        session = getattr(self, "session", None)
+        if session is not None and self.recovered_to is None and not self.recovery_failed:
+            try:
+                if session.dirty:
+                    self.recovered_to = write_recovery(session.path, session.text,
+                                                       clock.utc_now())
+            except Exception as exc:  # the app is stopping: say why, and go on
+                self.recovery_failed = f"{type(exc).__name__}: {exc}"
+        super()._handle_exception(error)
 
     # -- start and views ------------------------------------------------------------------
     def on_mount(self) -> None:

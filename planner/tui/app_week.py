@@ -10,6 +10,7 @@ from __future__ import annotations
 from typing import TYPE_CHECKING
 
 from planner.errors import PlannerError
+from planner.tui.background import internal_error
 
 if TYPE_CHECKING:
     from planner.tui.app import BeltplanApp
@@ -36,5 +37,9 @@ class WeekActions:
             self.week_state().plan()
         except PlannerError as err:
             self.say(err.render(), "error")
+            return
+        except Exception as exc:  # a bug in the week plan: told, the UI and its edits stay
+            self.log.error("building the week plan failed", exc)
+            self.say(internal_error("building the week plan", exc).render(), "error")
             return
         self.push_screen(WeekScreen())

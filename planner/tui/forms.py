@@ -14,6 +14,7 @@ from typing import Any
 
 from rich.text import Text
 
+from planner.dates import parse_day
 from planner.errors import Problem
 from planner.safetext import shown
 
@@ -85,11 +86,7 @@ def convert(f: FormField, raw: Any) -> Any:
 
 def _convert_text(f: FormField, text: str) -> Any:
     if f.kind == "date":
-        try:
-            return dt.date.fromisoformat(text)
-        except ValueError:
-            raise ValueError(f"{text!r} is not a date: write YYYY-MM-DD, e.g. 2026-12-07") \
-                from None
+        return parse_day(text)
     if f.kind == "distance":
         number = _number(text)
         return int(number) if number.is_integer() else number
