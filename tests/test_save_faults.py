@@ -448,6 +448,7 @@ def _check_after_kill(path: Path, allowed: set[bytes]) -> None:
         assert backup_path(path).read_bytes() in allowed
 
 
+@pytest.mark.slow
 @needs_fork
 def test_sigkill_at_random_points_never_tears_the_file(tmp_path):
     path = tmp_path / "courier_fleet.toml"

@@ -518,6 +518,7 @@ def _segments(strip) -> list[tuple[str, Any]]:
     return [(seg.text, seg.style) for seg in strip]
 
 
+@pytest.mark.slow
 @pytest.mark.parametrize("size", [(80, 24), (60, 20), (160, 48)])
 def test_the_lazy_table_draws_every_line_as_the_datatable_does(size):
     """Reference: Textual's own DataTable, same cells and widths; styles compare with their
