@@ -410,21 +410,13 @@ def write_atomic(path: str | os.PathLike[str], data: bytes, *, like: Path | None
     """
     target = Path(path)
     if not backup:
-        target = _followed(target)
+        target = replaceable(target)
     folder = target.parent if str(target.parent) else Path(".")
     _check_writable(target, folder, backup)
     try:
         current = os.lstat(target)
     except OSError:
         current = None
-    if current is not None and not backup and current.st_nlink > 1 \
-            and stat.S_ISREG(current.st_mode):
-        raise PlannerError(f"cannot write {target}",
-                           f"it has {current.st_nlink - 1} other hard link"
-                           f"{'s' * (current.st_nlink > 2)} (the same file under another "
-                           "name); replacing it would split them, so nothing was saved. Save "
-                           "to another path, or make it a file of its own first (copy it, "
-                           "then move the copy over it)")
     source = like if like is not None else (target if current is not None
                                             and stat.S_ISREG(current.st_mode) else None)
     fd = None
@@ -451,6 +443,25 @@ def write_atomic(path: str | os.PathLike[str], data: bytes, *, like: Path | None
             except OSError:
                 pass
     remove_stale_temps(target)
+
+
+def replaceable(path: Path) -> Path:
+    """The file that replacing `path` would replace, checked before anything is written: links
+    followed only when they are the user's or the folder owner's (`_followed`), and a file with
+    other hard links refused (the rename would split them)."""
+    target = _followed(path)
+    try:
+        current = os.lstat(target)
+    except OSError:
+        return target
+    if current.st_nlink > 1 and stat.S_ISREG(current.st_mode):
+        raise PlannerError(f"cannot write {target}",
+                           f"it has {current.st_nlink - 1} other hard link"
+                           f"{'s' * (current.st_nlink > 2)} (the same file under another "
+                           "name); replacing it would split them, so nothing was saved. Save "
+                           "to another path, or make it a file of its own first (copy it, "
+                           "then move the copy over it)")
+    return target
 
 
 def _followed(target: Path) -> Path:
@@ -626,12 +637,22 @@ def remove_stale_temps(target: Path) -> None:
     try:
         now = time.time()
         short = _short_name(target)
+        me = os.geteuid() if hasattr(os, "geteuid") else None
         for leftover in target.parent.glob(f".{glob.escape(short)}.*{TEMP_SUFFIX}"):
-            owner = leftover.name[len(short) + 2:].split(".", 1)[0]
-            if _ended(owner) or now - leftover.lstat().st_mtime > STALE_TEMP_SECONDS:
+            owner, _, rest = leftover.name[len(short) + 2:].partition(".")
+            if not (_TEMP_OWNER.fullmatch(owner) and _TEMP_RANDOM.fullmatch(rest)):
+                continue  # not a name this module makes: someone else's file
+            info = leftover.lstat()
+            if me is not None and info.st_uid != me or not stat.S_ISREG(info.st_mode):
+                continue  # never another user's file, nor a link or a folder
+            if _ended(owner) or now - info.st_mtime > STALE_TEMP_SECONDS:
                 leftover.unlink()
     except OSError:
         pass
+
+
+_TEMP_OWNER = re.compile(r"[^.\-]+-[0-9]+")  # <host>-<pid>, as `_temp_prefix` writes it
+_TEMP_RANDOM = re.compile(r"[A-Za-z0-9_]{8}" + re.escape(TEMP_SUFFIX))  # mkstemp's random part
 
 
 def _ended(owner: str) -> bool:
@@ -680,6 +701,10 @@ def save_fleet_text(loaded: LoadedFleet, text: str, fleet: Fleet | None = None) 
                 "then check where the file went.",
             )
         _check_owner(path)
+        try:  # every check of the write before the backup: a refused save changes nothing
+            replaceable(path)
+        except PlannerError as err:
+            raise PlannerError(f"{path} was not saved", err.message) from None
         try:
             write_atomic(backup_path(path), current, like=path, backup=True)
         except PlannerError as err:

@@ -160,6 +160,7 @@ def test_a_save_keeps_a_posix_acl(fleet):
 def test_a_save_refuses_to_split_a_hard_link(fleet, tmp_path):
     other = tmp_path / "second-name.toml"
     os.link(fleet, other)
+    backup_path(fleet).write_bytes(b"an earlier backup")
     loaded = load_fleet(fleet)
     with pytest.raises(PlannerError) as caught:
         save_fleet_text(loaded, NEW_TEXT)
@@ -167,6 +168,8 @@ def test_a_save_refuses_to_split_a_hard_link(fleet, tmp_path):
     assert "nothing was saved" in caught.value.render().lower()
     assert fleet.stat().st_ino == other.stat().st_ino and fleet.stat().st_nlink == 2
     assert fleet.read_bytes() == OLD
+    # Refused before anything is written: the earlier backup is still there.
+    assert backup_path(fleet).read_bytes() == b"an earlier backup"
 
 
 # -- 3. the backup's mode ---------------------------------------------------------------------
@@ -380,6 +383,22 @@ def test_the_leftover_of_a_dead_save_goes_at_the_next_read(fleet):
     load_fleet(fleet)
     assert [p for p in fleet.parent.iterdir() if p.name.endswith(fileio.TEMP_SUFFIX)] == []
     assert fleet.read_bytes() == OLD
+
+
+def test_a_read_leaves_other_users_and_other_programs_files_alone(fleet):
+    # Old files beside the fleet file that match `.NAME.*.tmp` but are not a leftover of ours:
+    # another program's name, and a name of our form that belongs to another user.
+    theirs = fleet.parent / f".{fleet.name}.notes.tmp"
+    other_user = fleet.parent / f".{fleet.name}.abc123-1.abcd1234.tmp"
+    for path in (theirs, other_user):
+        path.write_bytes(b"not ours")
+        os.utime(path, (0, 0))  # far older than ten minutes
+    if os.geteuid() == 0:
+        os.chown(other_user, 65534, 65534)
+    load_fleet(fleet)
+    assert theirs.read_bytes() == b"not ours"
+    if os.geteuid() == 0:
+        assert other_user.read_bytes() == b"not ours"
 
 
 # -- 9. names near the file system's limit ----------------------------------------------------
