@@ -248,6 +248,16 @@ def beltplan(*args: str, stdin=None, stdout=subprocess.PIPE, shell_tail: str = "
                           timeout=120)
 
 
+@pytest.mark.skipif(not os.path.exists("/dev/full"), reason="no /dev/full on this system")
+@pytest.mark.parametrize("tail", [" > /dev/full", " >&-"], ids=["disk full", "closed"])
+def test_standard_output_that_cannot_be_written_is_one_line_and_exit_2(tail):
+    # /dev/full answers every write with ENOSPC (Linux null(4)/full(4) manual page).
+    done = beltplan("list", str(COURIER), "--as-of", "2026-12-04", shell_tail=tail)
+    err = done.stderr.decode()
+    assert done.returncode == 2, err
+    assert "Traceback" not in err and "standard output" in err and len(err.splitlines()) == 1
+
+
 def test_output_to_dev_stdout_into_a_pipe(tmp_path):
     done = beltplan("schema", "-o", "/dev/stdout", shell_tail=" | cat")
     assert done.returncode == 0, done.stderr.decode()

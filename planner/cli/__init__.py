@@ -7,8 +7,10 @@ Each command lives in its own module with a `register(subparsers)` that adds its
 from __future__ import annotations
 
 import argparse
+import errno
 import gc
 import importlib
+import os
 import sys
 from collections.abc import Sequence
 
@@ -52,6 +54,22 @@ def build_parser() -> argparse.ArgumentParser:
     return parser
 
 
+# What writing to standard output can meet: a full disk, a closed pipe or descriptor, a device
+# error, a quota or size limit.
+_OUTPUT_ERRORS = {errno.ENOSPC, errno.EPIPE, errno.EBADF, errno.EIO, errno.EDQUOT, errno.EFBIG}
+
+
+def _quiet_stdout() -> None:
+    """Point standard output at the null device, so that the interpreter's last flush on exit
+    does not fail again on what could not be written."""
+    try:
+        null = os.open(os.devnull, os.O_WRONLY)
+        os.dup2(null, sys.stdout.fileno())
+        os.close(null)
+    except (OSError, ValueError, AttributeError):
+        pass
+
+
 def main(argv: Sequence[str] | None = None) -> int:
     args_in = list(sys.argv[1:] if argv is None else argv)
     # `beltplan [FILE] [options]` (no command word) opens the terminal UI: only its own parser
@@ -80,10 +98,22 @@ def main(argv: Sequence[str] | None = None) -> int:
         # and without the collector their memory would grow many times over. The UI holds the
         # collector off only while it reads (`tui/background.py`).
         gc.disable()
+    if sys.stdout is None:  # started with standard output closed (`>&-`)
+        print("beltplan: standard output is closed: nothing was written", file=sys.stderr)
+        return EXIT_USER_ERROR
     try:
-        return int(args.run(args) or 0)
+        code = int(args.run(args) or 0)
+        sys.stdout.flush()  # here, where a full disk or a closed pipe can still be told
+        return code
     except PlannerError as err:
         return fail(err)
+    except OSError as exc:
+        if exc.filename is not None or exc.errno not in _OUTPUT_ERRORS:
+            raise  # not the output: a bug, with its traceback
+        _quiet_stdout()
+        print(f"beltplan: cannot write to standard output: {exc.strerror or exc}",
+              file=sys.stderr)
+        return EXIT_USER_ERROR
     except KeyboardInterrupt:
         print("interrupted", file=sys.stderr)
         return 130
