@@ -832,24 +832,49 @@ def write_output(path: str | os.PathLike[str], data: bytes) -> None:
         _write_all(fd_number, data, name)
         return
     target = Path(name)
+    followed = _followed(target)
     try:
-        info = os.stat(_followed(target))
+        info = os.stat(followed)
     except OSError:
         info = None
+    if info is not None:
+        _refuse_planted(followed, info)
     if info is None or stat.S_ISREG(info.st_mode) or stat.S_ISDIR(info.st_mode):
         write_atomic(target, data)
         return
     try:
-        # No O_CREAT, no O_TRUNC: into what is there. A FIFO waits for its reader, as with
-        # any program writing to one.
-        fd = os.open(target, os.O_WRONLY | _NOCTTY | _CLOEXEC)
+        # No O_CREAT, no O_TRUNC: into what is there. Opened without waiting: a FIFO that no
+        # program reads is refused at once, not waited on for ever.
+        fd = os.open(target, os.O_WRONLY | _NOCTTY | _CLOEXEC | getattr(os, "O_NONBLOCK", 0))
     except OSError as exc:
-        raise PlannerError(f"cannot write {target}",
-                           f"{exc.strerror or exc}; nothing was written") from None
+        why = ("no program is reading from it" if exc.errno == errno.ENXIO
+               else exc.strerror or str(exc))
+        raise PlannerError(f"cannot write {target}", f"{why}; nothing was written") from None
     try:
+        if hasattr(os, "set_blocking"):
+            os.set_blocking(fd, True)  # a slow reader is waited for, as by any program
         _write_all(fd, data, name)
     finally:
         os.close(fd)
+
+
+def _refuse_planted(target: Path, info: os.stat_result) -> None:
+    """Refuse an output that another user placed in a shared (sticky) folder, such as /tmp: a
+    FIFO or a file there would hand them what is written (the rule of Linux's
+    protected_fifos and protected_regular)."""
+    if not hasattr(os, "geteuid"):
+        return
+    folder = target.parent if str(target.parent) else Path(".")
+    try:
+        folder_info = os.stat(folder)
+    except OSError:
+        return
+    if folder_info.st_mode & stat.S_ISVTX and info.st_uid not in (os.geteuid(),
+                                                                   folder_info.st_uid):
+        raise PlannerError(f"cannot write {target}",
+                           f"it belongs to another user (uid {info.st_uid}) in a shared "
+                           "folder, who would receive what is written: choose another path, "
+                           "or remove it first")
 
 
 _STREAMS = {"/dev/stdout": 1, "/dev/stderr": 2}

@@ -232,13 +232,50 @@ def test_an_output_link_of_ones_own_is_written_through(tmp_path):
 def test_output_into_a_fifo_writes_into_it(tmp_path):
     fifo = tmp_path / "plan.fifo"
     os.mkfifo(fifo)
-    got: list[bytes] = []
-    reader = threading.Thread(target=lambda: got.append(fifo.read_bytes()), daemon=True)
-    reader.start()
-    emit("a,b\n1,2\n", str(fifo))
-    reader.join(30)  # a guard against a hang, not a timing check
-    assert got == [b"a,b\n1,2\n"]
+    reader = os.open(fifo, os.O_RDONLY | os.O_NONBLOCK)  # a reader is there before the write
+    try:
+        emit("a,b\n1,2\n", str(fifo))
+        assert os.read(reader, 1000) == b"a,b\n1,2\n"
+    finally:
+        os.close(reader)
     assert stat.S_ISFIFO(os.lstat(fifo).st_mode)
+
+
+def test_output_into_a_fifo_nobody_reads_is_refused_at_once(tmp_path):
+    fifo = tmp_path / "plan.fifo"
+    os.mkfifo(fifo)
+    with pytest.raises(PlannerError) as caught:
+        emit("a,b\n", str(fifo))
+    assert "no program is reading" in caught.value.render()
+
+
+@pytest.mark.skipif(os.geteuid() != 0, reason="needs root to plant files as another user")
+@pytest.mark.parametrize("kind", ["fifo", "file"])
+def test_an_output_planted_by_another_user_in_a_shared_folder_is_refused(tmp_path, kind):
+    # A sticky, world-writable folder as /tmp (mode 1777): a FIFO or a 0666 file another user
+    # put there would hand them the export (Linux's protected_fifos / protected_regular rule).
+    shared = tmp_path / "shared"
+    shared.mkdir()
+    os.chmod(shared, 0o1777)
+    planted = shared / "plan.csv"
+    if kind == "fifo":
+        os.mkfifo(planted)
+    else:
+        planted.write_bytes(b"")
+    os.chmod(planted, 0o666)
+    os.chown(planted, 65534, 65534)
+    reader = os.open(planted, os.O_RDONLY | os.O_NONBLOCK) if kind == "fifo" else None
+    try:
+        with pytest.raises(PlannerError) as caught:
+            emit("customer,phone\n", str(planted))
+        assert "another user" in caught.value.render()
+        if reader is not None:
+            assert os.read(reader, 100) == b""  # no writer ever came: nothing was written
+    finally:
+        if reader is not None:
+            os.close(reader)
+    if kind == "file":
+        assert planted.read_bytes() == b""
 
 
 def beltplan(*args: str, stdin=None, stdout=subprocess.PIPE, shell_tail: str = ""):
