@@ -15,7 +15,6 @@ import struct
 import subprocess
 import sys
 import tempfile
-import threading
 from pathlib import Path
 
 import pytest
