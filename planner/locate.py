@@ -202,7 +202,7 @@ def _escaped(s: str, i: int) -> bool:
 # tomllib's time and memory grow with the square of a key's depth (a header 40,000 names deep,
 # 80 KB, would take minutes and gigabytes). A name and its dot take at least two characters, so
 # only lines at least that long are searched, and only where a key can start.
-MAX_KEY_NAMES = 200
+MAX_KEY_NAMES = 32
 _KEY_NAME = r"""(?:[A-Za-z0-9_-]++|"(?:[^"\\\n]|\\.)*+"|'[^'\n]*+')"""
 _LONG_LINE = re.compile(r"^[^\n]{" + str(2 * MAX_KEY_NAMES - 1) + ",}", re.MULTILINE)
 _DEEP_KEY = re.compile(r"(?:^[ \t]*+\[{0,2}|[{,])[ \t]*+(?:" + _KEY_NAME

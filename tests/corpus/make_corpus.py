@@ -144,7 +144,7 @@ case(
 )
 case(
     "deep_tables",
-    BASE + "[vehicles.contact." + ".".join(["a"] * 120) + "]\nx = 1\n",
+    BASE + "[vehicles.contact." + ".".join(["a"] * 20) + "]\nx = 1\n",
     "unknown key 'a'",
     44,
     "CV-02",
