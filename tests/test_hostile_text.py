@@ -384,3 +384,21 @@ def test_a_form_shows_a_line_end_escaped_and_keeps_the_text_when_left_untouched(
     assert shown_value(f) == "Van\\r\\nHX-99 overdue\\u202e"  # one line, escapes visible
     assert convert(f, shown_value(f)) == "Van\r\nHX-99 overdue\u202e"  # the file's own text
     assert convert(f, "Van HX-99") == "Van HX-99"  # what the user typed instead
+
+
+def test_a_file_name_with_escapes_and_line_ends_is_shown_inert(tmp_path, capsys):
+    from planner.cli import main
+    from tests.conftest import COURIER
+
+    # A name may hold any byte but "/" and NUL (POSIX): one that sets the title and forges a
+    # line must be shown as escapes in check's line and list's "wrote" message.
+    name = tmp_path / "p\x1b]0;PWN\x07\r\nFORGED.toml"
+    name.write_bytes(COURIER.read_bytes())
+    out_path = tmp_path / "o\x1b[31m.csv"
+    assert main(["check", str(name)]) == 0
+    assert main(["list", str(name), "--as-of", "2026-12-04", "--format", "csv",
+                 "-o", str(out_path)]) == 0
+    both = capsys.readouterr()
+    for text in (both.out, both.err):
+        assert "\x1b" not in text and "\x07" not in text and "\r" not in text
+        assert not any(line.startswith("FORGED") for line in text.splitlines())

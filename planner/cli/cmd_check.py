@@ -7,6 +7,7 @@ import argparse
 from planner.caution import CAUTION, caution_block
 from planner.cli.common import load
 from planner.fileio import warnings_of
+from planner.safetext import shown
 
 
 def register(sub: argparse._SubParsersAction) -> None:
@@ -28,7 +29,7 @@ def run(args: argparse.Namespace) -> int:
     loaded = load(args.file)
     fleet = loaded.fleet
     n = len(fleet.vehicles)
-    print(f"{args.file}: valid: {n} vehicle{'s' if n != 1 else ''}, "
+    print(f"{shown(args.file)}: valid: {n} vehicle{'s' if n != 1 else ''}, "
           f"{len(fleet.engines)} engine profile{'s' if len(fleet.engines) != 1 else ''}, "
           f"distances in {fleet.unit}")
     found = warnings_of(loaded)

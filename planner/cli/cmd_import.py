@@ -12,6 +12,7 @@ from planner.caution import caution_block
 from planner.cli.common import say
 from planner.errors import PlannerError
 from planner.fileio import backup_path, load_fleet, read_csv, write_atomic
+from planner.safetext import shown
 
 EPILOG = """\
 examples:
@@ -107,10 +108,11 @@ def run(args: argparse.Namespace) -> int:
     write_atomic(out, result.text.encode("utf-8"))
     loaded = load_fleet(out)  # the normal loader: what was written must be a valid fleet file
     fleet = loaded.fleet
-    say(f"\nWrote {out}{kept}: {len(fleet.vehicles)} vehicles, {len(fleet.engines)} engine "
-          f"profiles, distances in {fleet.unit}; loaded back and valid.")
+    say(f"\nWrote {shown(str(out))}{kept}: {len(fleet.vehicles)} vehicles, "
+        f"{len(fleet.engines)} engine profiles, distances in {fleet.unit}; loaded back and "
+        "valid.")
     if result.problems:
         say(f"{len({p.row for p in result.problems})} rows were left out: fix them in the "
               "sheet and import again with --force, or add them to the file by hand.")
-    say(f"Next: beltplan list {out}")
+    say(f"Next: beltplan list {shown(str(out))}")
     return 0

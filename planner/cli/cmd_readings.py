@@ -12,6 +12,7 @@ from planner.cli.cmd_import import add_csv_options
 from planner.cli.common import load, say
 from planner.errors import PlannerError
 from planner.fileio import backup_path, read_csv, save_fleet_text
+from planner.safetext import shown
 
 EPILOG = """\
 examples:
@@ -70,11 +71,11 @@ def run(args: argparse.Namespace) -> int:
             raise
     say("\n".join(result.report))
     if args.dry_run:
-        say(f"\nDry run: {args.file} was not changed.")
+        say(f"\nDry run: {shown(args.file)} was not changed.")
     elif not result.added:
-        say(f"\nNothing to add: {args.file} was not changed.")
+        say(f"\nNothing to add: {shown(args.file)} was not changed.")
     else:
-        say(f"\nSaved {args.file} with {len(result.added)} new reading"
+        say(f"\nSaved {shown(args.file)} with {len(result.added)} new reading"
             f"{'s' * (len(result.added) != 1)} (the previous version is "
             f"{backup_path(loaded.path)}).")
         note_open_window(args.file, inuse.holder(loaded.path))
@@ -97,6 +98,6 @@ def note_open_window(file: str, held: inuse.Holder | None) -> None:
     if held is None:
         return
     now = dt.datetime.now(dt.UTC)  # the clock at the edge, for "12 minutes ago"
-    say(f"beltplan: note: {file} is open in a beltplan window of {held.who()} since "
+    say(f"beltplan: note: {shown(file)} is open in a beltplan window of {held.who()} since "
           f"{held.since(now)}; that window will have to reload the file before it can save.",
           file=sys.stderr)

@@ -81,4 +81,4 @@ def emit(text: str, out: str | None, fleet_path: Path | None = None, what: str =
         raise PlannerError(f"refusing to write over the fleet file {out}",
                            "Choose another output path with -o.")
     write_output(target, text.encode("utf-8"))
-    print(f"wrote {what + ' to ' if what else ''}{target}", file=sys.stderr)
+    print(f"wrote {what + ' to ' if what else ''}{shown(str(target))}", file=sys.stderr)
