@@ -697,6 +697,10 @@ def _explain(err: Any, path: Path, is_key: bool = False) -> tuple[str, str]:
         if kind.startswith(("greater_than", "less_than")) and bound in ctx:
             limit = _number_text(ctx[bound])
             low = bound in ("gt", "ge")
+            if low and float(ctx[bound]) > 0:  # a range of its own: say it, and why
+                why = _description(path)
+                return (f"{name} must be {words} {limit} {found}",
+                        f"set {name} to {limit} or more" + (f". {why}" if why else ""))
             return (f"{name} must be {words} {limit} {found}",
                     "check for a minus sign or a missing digit" if low else
                     f"check for an extra digit: {limit} is a sanity limit no real value reaches")

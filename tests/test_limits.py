@@ -82,6 +82,8 @@ def test_shape_0_003_gives_exit_2_in_every_command(tmp_path, capsys):
         assert main([command, str(path), *extra]) == 2
         err = capsys.readouterr().err
         assert "shape" in err and f"{path}" in err
+        # The fix names the range and why, not a typing slip ("a minus sign").
+        assert "set shape to 0.5 or more" in err and "minus sign" not in err
 
 
 # -- a fleet fit with failures close together -----------------------------------------------
