@@ -12,9 +12,6 @@ from collections.abc import Callable
 from typing import TYPE_CHECKING
 
 from rich.text import Text
-from textual.app import ComposeResult
-from textual.containers import Vertical
-from textual.widgets import Button, Static
 
 from planner import inuse
 from planner.inuse import Claim, Holder, Unmarked
@@ -35,15 +32,9 @@ class InUseDialog(AskDialog):
     when, then the choices one under another, each saying what happens to this window's edits.
     Escape means the safe answer (look only)."""
 
-    def compose(self) -> ComposeResult:
-        with Vertical(classes="panel -narrow -in-use") as panel:
-            panel.border_title = self.title_words
-            panel.border_subtitle = "esc: look only"
-            yield Static(self.question, classes="intro", markup=False)
-            with Vertical(classes="choices"):
-                for ident, words, variant in self.answers:
-                    yield Button(words, id=f"ask-{ident}", variant=variant,  # type: ignore[arg-type]
-                                 compact=True)
+    PANEL_CLASSES = "panel -narrow -in-use"
+    ESCAPE_WORDS = "esc: look only"
+    ANSWERS_IN_A_COLUMN = True
 
 
 class InUseActions:

@@ -19,6 +19,10 @@ from planner.tui.view import CONSEQUENCES, STATUSES
 class AskDialog(Popup[str]):
     """A question and a row of answers; dismisses with the chosen answer's id (None: esc)."""
 
+    PANEL_CLASSES = "panel -narrow"
+    ESCAPE_WORDS = "esc: cancel"
+    ANSWERS_IN_A_COLUMN = False  # a row of buttons; a column for long answers
+
     def __init__(self, title: str, question: Text | str,
                  answers: Sequence[tuple[str, str, str]], name: str | None = None) -> None:
         """`answers`: (id, button words, variant) — the first is focused."""
@@ -28,11 +32,13 @@ class AskDialog(Popup[str]):
         self.answers = answers
 
     def compose(self) -> ComposeResult:
-        with Vertical(classes="panel -narrow") as panel:
+        with Vertical(classes=self.PANEL_CLASSES) as panel:
             panel.border_title = self.title_words
-            panel.border_subtitle = "esc: cancel"
+            panel.border_subtitle = self.ESCAPE_WORDS
             yield Static(self.question, classes="intro", markup=False)
-            with Horizontal(classes="buttons"):
+            answers = (Vertical(classes="choices") if self.ANSWERS_IN_A_COLUMN
+                       else Horizontal(classes="buttons"))
+            with answers:
                 for ident, words, variant in self.answers:
                     yield Button(words, id=f"ask-{ident}", variant=variant,  # type: ignore[arg-type]
                                  compact=True)
